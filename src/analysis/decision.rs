@@ -1,0 +1,101 @@
+//! The decision the gate implies, and the warnings that keep a reader from a
+//! misleading comparison.
+//!
+//! Slopes are taken as homogeneous when the equal-slopes p-value is at least
+//! `slopes_alpha`. Then the groups are compared on a common slope (adjusted means)
+//! and the report leads with that; otherwise the lines cross somewhere, a single
+//! adjusted-mean difference depends on where it is taken, and the report leads with
+//! the slopes themselves.
+
+use super::gate::spread_warning;
+use crate::number::sig;
+use crate::number::{p_equation, trimmed};
+use crate::plan::Plan;
+use crate::results::{Decision, Results};
+
+/// What the comparison leads with when slopes are equal.
+pub const LEAD_COMMON: &str = "common-slope";
+/// What the comparison leads with when slopes differ.
+pub const LEAD_SEPARATE: &str = "separate-slopes";
+
+/// A decision to be filled in by [`conclude`].
+pub(super) fn placeholder() -> Decision {
+    Decision {
+        homogeneous: false,
+        lead: String::new(),
+        reason: String::new(),
+    }
+}
+
+/// Small groups make the gate weak; 10 rows per group is a rule of thumb for a
+/// usable slope test (common practice, no source).
+const LOW_POWER_N: u64 = 10;
+
+/// Fills in the decision and the warnings.
+pub(super) fn conclude(plan: &Plan, mut r: Results, mut warnings: Vec<String>) -> Results {
+    let gate = &r.equal_slopes;
+    let p_text = gate.p_value.map_or("no p-value".to_string(), p_equation);
+    let homogeneous = gate.homogeneous;
+    let reason = if homogeneous {
+        format!(
+            "The equal-slopes test gives {p_text}, at or above slopes_alpha = {}, so the slopes are taken as equal and the groups are compared on a common slope.",
+            trimmed(gate.alpha, 4)
+        )
+    } else {
+        format!(
+            "The equal-slopes test gives {p_text}, below slopes_alpha = {}, so the slopes are taken to differ and the groups are compared by their slopes.",
+            trimmed(gate.alpha, 4)
+        )
+    };
+
+    let response = plan.model.response_transform.label(&plan.model.response);
+    let covariate = plan.model.covariate_transform.label(&plan.model.covariate);
+    if homogeneous {
+        let smallest = r.groups.iter().map(|g| g.n).min().unwrap_or(0);
+        if smallest < LOW_POWER_N {
+            warnings.push(format!(
+                "The smallest group has only {smallest} rows, so the equal-slopes test has little power: a p-value above slopes_alpha is not evidence that the slopes are equal."
+            ));
+        }
+    } else {
+        warnings.push(format!(
+            "Slopes differ, so the adjusted means compare the groups at {covariate} = {} only; at other values of {covariate} the differences in {response} change size and may change sign. Read the slope comparisons first.",
+            sig(r.adjust_at, 4)
+        ));
+    }
+    let levels: Vec<&str> = r.groups.iter().map(|g| g.level.as_str()).collect();
+    if let Some(w) = spread_from_results(&r, &levels) {
+        warnings.push(w);
+    }
+    let outside: Vec<String> = r
+        .adjusted_means
+        .iter()
+        .filter(|m| !m.within_range)
+        .map(|m| format!("`{}`", m.level))
+        .collect();
+    if !outside.is_empty() {
+        warnings.push(format!(
+            "Adjusted means for {} are extrapolations: {covariate} = {} lies outside the covariate values observed in {}.",
+            outside.join(", "),
+            sig(r.adjust_at, 4),
+            if outside.len() == 1 { "that group" } else { "those groups" }
+        ));
+    }
+
+    r.decision = Decision {
+        homogeneous,
+        lead: if homogeneous {
+            LEAD_COMMON
+        } else {
+            LEAD_SEPARATE
+        }
+        .to_string(),
+        reason,
+    };
+    r.warnings = warnings;
+    r
+}
+
+fn spread_from_results(r: &Results, levels: &[&str]) -> Option<String> {
+    spread_warning(levels, r.groups.iter().map(|g| g.residual_sd))
+}

@@ -1,0 +1,41 @@
+//! The analysis stage's error.
+
+use crate::diagnostic::Diagnostic;
+
+/// Why the procedure cannot run on these data.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum AnalysisError {
+    /// Fewer than two groups can carry a line.
+    #[error("{}", too_few(.usable, .excluded))]
+    TooFewGroups {
+        /// Groups that can carry a line.
+        usable: Vec<String>,
+        /// Groups left out, with why.
+        excluded: Vec<(String, String)>,
+    },
+}
+
+fn too_few(usable: &[String], excluded: &[(String, String)]) -> String {
+    let mut s = match usable.len() {
+        0 => "no group has enough usable rows to fit a line".to_string(),
+        _ => format!(
+            "only one group (`{}`) has enough usable rows to fit a line; comparing lines needs at least two",
+            usable[0]
+        ),
+    };
+    for (level, why) in excluded {
+        s.push_str(&format!("; `{level}` {why}"));
+    }
+    s
+}
+
+impl AnalysisError {
+    /// The error with advice.
+    pub fn diagnostic(&self) -> Diagnostic {
+        match self {
+            AnalysisError::TooFewGroups { .. } => Diagnostic::new(self.to_string()).help(
+                "each group needs at least 3 usable rows with at least two different covariate values; check model.group, data.keep and data.missing",
+            ),
+        }
+    }
+}

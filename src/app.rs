@@ -1,0 +1,203 @@
+//! The edge: the only code that reads files, writes folders and sets the exit
+//! status. Each command is one function; every error becomes a [`Diagnostic`] and is
+//! printed once, here.
+
+use std::fs::File;
+use std::io::Write;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use clap::Parser;
+
+use crate::cli::{Cli, Command};
+use crate::diagnostic::{Diagnostic, Snippet};
+use crate::digest::{HashingReader, sha256_hex};
+use crate::plan::{Format, Plan};
+use crate::results::Provenance;
+use crate::{TOOL_VERSION, analysis, data, output, plan, report};
+
+/// Parses the command line and runs it.
+pub fn main() -> ExitCode {
+    let cli = Cli::parse();
+    match cli.command {
+        Command::Run { plans, out } => run_plans(&plans, out.as_deref()),
+    }
+}
+
+/// `slopewise run`: runs each plan; a failing plan does not stop the others.
+fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
+    let several = plans.len() > 1;
+    let mut failed = 0;
+    for plan_path in plans {
+        let target = out.map(|o| {
+            if several {
+                o.join(plan_path.file_stem().unwrap_or_default())
+            } else {
+                o.to_path_buf()
+            }
+        });
+        match run_plan(plan_path, target.as_deref()) {
+            Ok(written) => println!("{}: wrote {}", plan_path.display(), written.display()),
+            Err(d) => {
+                failed += 1;
+                let _ = std::io::stderr().write_all(d.render().as_bytes());
+            }
+        }
+    }
+    if several {
+        println!(
+            "{} of {} plans ran; {failed} failed",
+            plans.len() - failed,
+            plans.len()
+        );
+    }
+    if failed == 0 {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::FAILURE
+    }
+}
+
+/// A plan file read and parsed, with what error messages need to point into it.
+struct LoadedPlan {
+    plan: Plan,
+    file: String,
+    source: String,
+    sha256: String,
+    dir: PathBuf,
+}
+
+impl LoadedPlan {
+    fn snippet(&self, span: std::ops::Range<usize>, label: &str) -> Snippet {
+        Snippet {
+            file: self.file.clone(),
+            source: self.source.clone(),
+            span,
+            label: label.to_string(),
+        }
+    }
+}
+
+fn load_plan(path: &Path) -> Result<LoadedPlan, Diagnostic> {
+    let file = path.display().to_string();
+    let bytes = std::fs::read(path).map_err(|e| {
+        Diagnostic::new(format!("cannot read the plan file {file}: {e}"))
+            .help("check the path; `slopewise run plans/NAME.toml` runs a plan in the plans folder")
+    })?;
+    let source = String::from_utf8(bytes.clone()).map_err(|_| {
+        Diagnostic::new(format!("the plan file {file} is not UTF-8 text"))
+            .help("save the plan as UTF-8")
+    })?;
+    let plan = plan::load(&file, &source).map_err(|e| e.diagnostic())?;
+    Ok(LoadedPlan {
+        plan,
+        file,
+        sha256: sha256_hex(&bytes),
+        source,
+        dir: path.parent().map(Path::to_path_buf).unwrap_or_default(),
+    })
+}
+
+/// Runs one plan end to end and returns the folder it wrote.
+fn run_plan(plan_path: &Path, out: Option<&Path>) -> Result<PathBuf, Diagnostic> {
+    let lp = load_plan(plan_path)?;
+    let plan = &lp.plan;
+    let target = match (out, &plan.report.out) {
+        (Some(o), _) => o.to_path_buf(),
+        (None, Some(o)) => lp.dir.join(o),
+        (None, None) => {
+            return Err(
+                Diagnostic::new(format!("the plan {} names no output folder", lp.file))
+                    .help("add `out = \"../reports/NAME\"` under [report], or pass `--out DIR`"),
+            );
+        }
+    };
+    let data_path = lp.dir.join(&plan.data.path);
+    let data_file = data_path.display().to_string();
+    let open = || {
+        File::open(&data_path).map_err(|e| {
+            Diagnostic::new(format!("cannot open the data file {data_file}: {e}"))
+                .at(lp.snippet(plan.spans.data_path.clone(), "named here"))
+                .help("data.path is relative to the folder that holds the plan file")
+        })
+    };
+    if let Some(pin) = &plan.data.sha256 {
+        let mut reader = HashingReader::new(open()?);
+        std::io::copy(&mut reader, &mut std::io::sink())
+            .map_err(|e| Diagnostic::new(format!("cannot read the data file {data_file}: {e}")))?;
+        let actual = reader
+            .finish()
+            .map_err(|e| Diagnostic::new(format!("cannot read {data_file}: {e}")))?;
+        if &actual != pin {
+            return Err(Diagnostic::new(format!(
+                "the data file {data_file} is not the one the plan pins: its SHA-256 is {actual}, the plan expects {pin}"
+            ))
+            .at(lp.snippet(plan.spans.data_sha256.clone().unwrap_or_default(), "pinned here"))
+            .help("if the new data are intended, update data.sha256; otherwise restore the pinned file"));
+        }
+    }
+    let mut reader = HashingReader::new(open()?);
+    let dataset =
+        data::load(plan, &mut reader).map_err(|e| data_diagnostic(&e, &lp, &data_file))?;
+    let data_sha256 = reader
+        .finish()
+        .map_err(|e| Diagnostic::new(format!("cannot read the data file {data_file}: {e}")))?;
+    let provenance = Provenance {
+        tool_version: TOOL_VERSION.to_string(),
+        plan_sha256: lp.sha256.clone(),
+        data_sha256,
+        plan_file: plan_path
+            .file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_default(),
+        data_file: plan.data.path.clone(),
+    };
+    let results = analysis::run(plan, &dataset, provenance).map_err(|e| {
+        let mut d = e.diagnostic();
+        d.file = Some(data_file.clone());
+        d
+    })?;
+    let mut files = Vec::new();
+    for format in &plan.report.formats {
+        match format {
+            Format::Json => files.push((
+                "results.json".to_string(),
+                report::json(&results)
+                    .map_err(|e| e.diagnostic())?
+                    .into_bytes(),
+            )),
+            Format::Markdown => files.push((
+                "report.md".to_string(),
+                report::markdown(&results)
+                    .map_err(|e| e.diagnostic())?
+                    .into_bytes(),
+            )),
+        }
+    }
+    output::write_run_folder(&target, &files).map_err(|e| e.diagnostic())?;
+    Ok(target)
+}
+
+/// A data error, pointing into the plan when a plan key is involved.
+fn data_diagnostic(e: &data::DataError, lp: &LoadedPlan, data_file: &str) -> Diagnostic {
+    let mut d = e.diagnostic().in_file(data_file);
+    let spans = &lp.plan.spans;
+    let span = e.plan_key().and_then(|key| match key {
+        data::PlanKey::Response => Some(spans.response.clone()),
+        data::PlanKey::Covariate => Some(spans.covariate.clone()),
+        data::PlanKey::Group => Some(spans.group.clone()),
+        data::PlanKey::Keep(i) => spans.keep_columns.get(i).cloned(),
+        data::PlanKey::Level(i) => spans.levels.get(i).cloned(),
+    });
+    if let data::DataError::OutsideDomain { column, .. } = e {
+        let span = if *column == lp.plan.model.response {
+            spans.response_transform.clone()
+        } else {
+            spans.covariate_transform.clone()
+        };
+        d = d.at(lp.snippet(span, "transform chosen here"));
+    } else if let Some(span) = span {
+        d = d.at(lp.snippet(span, "named here"));
+    }
+    d
+}

@@ -1,0 +1,247 @@
+//! The data stage's error: what is wrong with the CSV, at which row and column.
+
+use crate::diagnostic::Diagnostic;
+use crate::plan::Transform;
+
+/// Which plan key named a column, so the message can point at it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum PlanKey {
+    /// `model.response`.
+    Response,
+    /// `model.covariate`.
+    Covariate,
+    /// `model.group`.
+    Group,
+    /// `column` of the i-th `[[data.keep]]` rule.
+    Keep(usize),
+    /// The i-th entry of `model.levels`.
+    Level(usize),
+}
+
+impl PlanKey {
+    /// The key as written in the plan.
+    pub fn name(self) -> String {
+        match self {
+            PlanKey::Response => "model.response".into(),
+            PlanKey::Covariate => "model.covariate".into(),
+            PlanKey::Group => "model.group".into(),
+            PlanKey::Keep(i) => format!("data.keep[{}].column", i + 1),
+            PlanKey::Level(i) => format!("model.levels[{}]", i + 1),
+        }
+    }
+}
+
+/// A cell's position: 1-based data row (header excluded), file line and column.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CellAt {
+    /// 1-based data row, header excluded.
+    pub row: u64,
+    /// 1-based line of the file where the record starts.
+    pub line: u64,
+    /// Column name from the header.
+    pub column: String,
+    /// 1-based column position.
+    pub column_number: usize,
+}
+
+impl std::fmt::Display for CellAt {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "data row {} (file line {}), column `{}` (column {})",
+            self.row, self.line, self.column, self.column_number
+        )
+    }
+}
+
+/// Something wrong with the data file or its fit to the plan.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum DataError {
+    /// The file could not be read.
+    #[error("cannot read the data file: {0}")]
+    Io(String),
+    /// Zero bytes, or only blank lines.
+    #[error("the data file is empty")]
+    Empty,
+    /// A header and no data rows.
+    #[error("the data file has a header row but no data rows")]
+    NoRows,
+    /// Two header cells with the same name.
+    #[error("column name `{name}` appears twice in the header (columns {first} and {second})")]
+    DuplicateColumn {
+        /// The repeated name.
+        name: String,
+        /// Its first position (1-based).
+        first: usize,
+        /// Its second position.
+        second: usize,
+    },
+    /// A plan key names a column that the header does not have.
+    #[error("column `{column}` named by {} is not in the data", key.name())]
+    MissingColumn {
+        /// The column named in the plan.
+        column: String,
+        /// Which plan key named it.
+        key: PlanKey,
+        /// A close header name, if any.
+        suggestion: Option<String>,
+        /// All header names.
+        available: Vec<String>,
+    },
+    /// A record with a different number of fields than the header.
+    #[error("data row {row} (file line {line}) has {found} fields, but the header has {expected}")]
+    Ragged {
+        /// Data row.
+        row: u64,
+        /// File line.
+        line: u64,
+        /// Fields in the header.
+        expected: usize,
+        /// Fields in this row.
+        found: usize,
+    },
+    /// Bytes that are not UTF-8 text.
+    #[error("{at} is not valid UTF-8 text")]
+    NotUtf8 {
+        /// Where.
+        at: CellAt,
+    },
+    /// Another CSV syntax problem.
+    #[error("the data file could not be parsed near file line {line}: {message}")]
+    Syntax {
+        /// File line.
+        line: u64,
+        /// The parser's words.
+        message: String,
+    },
+    /// A numeric column holds text.
+    #[error("{at} holds `{text}`, which is not a number")]
+    NotANumber {
+        /// Where.
+        at: CellAt,
+        /// The cell text.
+        text: String,
+    },
+    /// A numeric cell reads as infinite or NaN.
+    #[error("{at} holds `{text}`, which is not a finite number")]
+    NotFinite {
+        /// Where.
+        at: CellAt,
+        /// The cell text.
+        text: String,
+    },
+    /// Values outside a transform's domain.
+    #[error(
+        "{transform} of `{column}` needs {domain}, but {count} used row{s} {have} other values; first: {first}",
+        transform = transform.name(),
+        domain = transform.domain(),
+        s = if *count == 1 { "" } else { "s" },
+        have = if *count == 1 { "has" } else { "have" },
+        first = list_rows(rows)
+    )]
+    OutsideDomain {
+        /// The column.
+        column: String,
+        /// The transform.
+        transform: Transform,
+        /// How many rows.
+        count: u64,
+        /// The first few (data row, value).
+        rows: Vec<(u64, f64)>,
+    },
+    /// A group label that `model.levels` does not list.
+    #[error(
+        "data row {row} (file line {line}) has group `{label}`, which model.levels does not list"
+    )]
+    UnlistedLevel {
+        /// Data row.
+        row: u64,
+        /// File line.
+        line: u64,
+        /// The label.
+        label: String,
+    },
+    /// A level listed in the plan that no row carries.
+    #[error("level `{level}` listed in model.levels does not occur in column `{column}`")]
+    AbsentLevel {
+        /// The level.
+        level: String,
+        /// Its position in `levels`.
+        index: usize,
+        /// The group column.
+        column: String,
+        /// A close label in the data, if any.
+        suggestion: Option<String>,
+    },
+    /// More rows than row numbers can hold.
+    #[error("the data file has more than {max} rows, which slopewise does not support")]
+    TooManyRows {
+        /// The limit.
+        max: u64,
+    },
+}
+
+fn list_rows(rows: &[(u64, f64)]) -> String {
+    rows.iter()
+        .map(|(r, v)| format!("row {r} ({v})"))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+impl DataError {
+    /// The plan key this error concerns, so the caller can show the plan line.
+    pub fn plan_key(&self) -> Option<PlanKey> {
+        match self {
+            DataError::MissingColumn { key, .. } => Some(*key),
+            DataError::AbsentLevel { index, .. } => Some(PlanKey::Level(*index)),
+            _ => None,
+        }
+    }
+
+    /// The error with advice on how to fix it (the caller adds file and plan span).
+    pub fn diagnostic(&self) -> Diagnostic {
+        let d = Diagnostic::new(self.to_string());
+        match self {
+            DataError::Io(_) => d.help("check the path in data.path; it is relative to the plan file's folder"),
+            DataError::Empty | DataError::NoRows => {
+                d.help("the file needs a header row naming the columns, then one row per observation")
+            }
+            DataError::DuplicateColumn { .. } => {
+                d.help("rename one of the columns so every header name is unique")
+            }
+            DataError::MissingColumn {
+                suggestion,
+                available,
+                ..
+            } => {
+                let d = match suggestion {
+                    Some(s) => d.help(format!("did you mean `{s}`?")),
+                    None => d,
+                };
+                d.help(format!("columns in the data: {}", available.join(", ")))
+            }
+            DataError::Ragged { .. } => d.help(
+                "every row needs as many fields as the header; check for a stray or missing delimiter, or quote fields that contain commas",
+            ),
+            DataError::NotUtf8 { .. } => d.help("save the file as UTF-8 text"),
+            DataError::Syntax { .. } => d.help("check the quoting on that line"),
+            DataError::NotANumber { .. } => d.help(
+                "fix the cell, or if it marks a missing value add that text to data.missing (for example missing = [\"\", \"NA\", \"-\"])",
+            ),
+            DataError::NotFinite { .. } => {
+                d.help("replace it with a finite value, or with a missing-value token from data.missing")
+            }
+            DataError::OutsideDomain { .. } => d.help(
+                "choose another transform in [model.transform], or exclude those rows with [[data.keep]]",
+            ),
+            DataError::UnlistedLevel { .. } => d.help(
+                "add the label to model.levels, or leave those rows out with a [[data.keep]] filter on the group column",
+            ),
+            DataError::AbsentLevel { suggestion, .. } => match suggestion {
+                Some(s) => d.help(format!("did you mean `{s}`?")),
+                None => d.help("remove it from model.levels or check the spelling"),
+            },
+            DataError::TooManyRows { .. } => d.help("split the file"),
+        }
+    }
+}

@@ -1,0 +1,402 @@
+//! The plan: what to analyse and how, read from a TOML file kept in git.
+//!
+//! Parsing goes in two steps. [`schema`] holds the serde types that mirror the file
+//! (unknown keys are refused, every value keeps its span); [`load`] turns them into a
+//! validated [`Plan`] of plain values plus a [`PlanSpans`] table, so a later stage that
+//! finds, say, a response column absent from the data can still point at the TOML
+//! line that named it. Nothing here reads data or touches the file system.
+
+mod error;
+mod schema;
+
+pub use error::PlanError;
+pub use schema::{Comparisons, Format, Transform};
+
+use std::ops::Range;
+use toml::Spanned;
+
+/// A validated plan.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Plan {
+    /// Report title.
+    pub title: String,
+    /// Where the data are and how to read them.
+    pub data: DataSpec,
+    /// Which columns play which part.
+    pub model: ModelSpec,
+    /// Levels and procedures of the tests.
+    pub tests: TestSpec,
+    /// What to write and where.
+    pub report: ReportSpec,
+    /// Spans of the values, for error messages that point into the plan.
+    pub spans: PlanSpans,
+}
+
+/// The `[data]` table.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DataSpec {
+    /// CSV path as written in the plan (relative to the plan's folder).
+    pub path: String,
+    /// Cell texts read as missing (compared after trimming spaces).
+    pub missing: Vec<String>,
+    /// Optional pin of the data file's SHA-256 (lower-case hex).
+    pub sha256: Option<String>,
+    /// Row filters; a row must pass all of them.
+    pub keep: Vec<KeepRule>,
+}
+
+/// One `[[data.keep]]` filter.
+#[derive(Debug, Clone, PartialEq)]
+pub struct KeepRule {
+    /// Column whose text is compared.
+    pub column: String,
+    /// Accepted texts (one for `equals`, several for `one_of`).
+    pub accepted: Vec<String>,
+}
+
+/// The `[model]` table.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ModelSpec {
+    /// Numeric response column.
+    pub response: String,
+    /// Numeric covariate column.
+    pub covariate: String,
+    /// Grouping column, read as text labels.
+    pub group: String,
+    /// Optional order of the levels; the first is the reference.
+    pub levels: Option<Vec<String>>,
+    /// Covariate value at which adjusted means are given.
+    pub adjust_at: AdjustAt,
+    /// Transform applied to the response before fitting.
+    pub response_transform: Transform,
+    /// Transform applied to the covariate before fitting.
+    pub covariate_transform: Transform,
+}
+
+/// Where along the covariate adjusted means are evaluated.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum AdjustAt {
+    /// The mean of the (transformed) covariate over the rows used.
+    Mean,
+    /// A fixed value on the transformed covariate scale.
+    Value(f64),
+}
+
+/// The `[tests]` table.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TestSpec {
+    /// Level for group comparisons and intervals.
+    pub alpha: f64,
+    /// Level of the equal-slopes gate.
+    pub slopes_alpha: f64,
+    /// Multiplicity adjustment of pairwise p-values.
+    pub comparisons: Comparisons,
+}
+
+/// The `[report]` table.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ReportSpec {
+    /// Outputs to write, in the order given.
+    pub formats: Vec<Format>,
+    /// Output folder as written in the plan (relative to the plan's folder).
+    pub out: Option<String>,
+}
+
+/// Byte spans of plan values that later stages may need to point at.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct PlanSpans {
+    /// `data.path`.
+    pub data_path: Range<usize>,
+    /// `data.sha256`, when given.
+    pub data_sha256: Option<Range<usize>>,
+    /// `model.response`.
+    pub response: Range<usize>,
+    /// `model.covariate`.
+    pub covariate: Range<usize>,
+    /// `model.group`.
+    pub group: Range<usize>,
+    /// Each entry of `model.levels`.
+    pub levels: Vec<Range<usize>>,
+    /// `column` of each keep rule.
+    pub keep_columns: Vec<Range<usize>>,
+    /// `model.transform.response`, or the `[model]` table when absent.
+    pub response_transform: Range<usize>,
+    /// `model.transform.covariate`, or the `[model]` table when absent.
+    pub covariate_transform: Range<usize>,
+}
+
+/// Default cell texts read as missing.
+pub const DEFAULT_MISSING: [&str; 2] = ["", "NA"];
+
+/// Parses and validates a plan. `file` is the name shown in messages.
+pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
+    let raw: schema::RawPlan =
+        toml::from_str(source).map_err(|e| PlanError::from_toml(file, source, &e))?;
+    let err = |span: Range<usize>, message: String, help: &str| {
+        PlanError::new(file, source, span, message, help)
+    };
+
+    let title = nonempty(&raw.title, "title", &err)?;
+
+    let data = raw.data.get_ref();
+    let path = nonempty(&data.path, "data.path", &err)?;
+    let missing = match &data.missing {
+        Some(list) => list.get_ref().clone(),
+        None => DEFAULT_MISSING.iter().map(|s| s.to_string()).collect(),
+    };
+    let sha256 = match &data.sha256 {
+        Some(pin) => {
+            let hex = pin.get_ref().trim().to_ascii_lowercase();
+            if hex.len() != 64 || !hex.bytes().all(|b| b.is_ascii_hexdigit()) {
+                return Err(err(
+                    pin.span(),
+                    "data.sha256 must be 64 hexadecimal digits".into(),
+                    "compute it with `sha256sum FILE` and paste the first field",
+                ));
+            }
+            Some(hex)
+        }
+        None => None,
+    };
+    let mut keep = Vec::new();
+    let mut keep_columns = Vec::new();
+    for rule in &data.keep {
+        let r = rule.get_ref();
+        let column = nonempty(&r.column, "data.keep.column", &err)?;
+        let accepted = match (&r.equals, &r.one_of) {
+            (Some(v), None) => vec![v.get_ref().clone()],
+            (None, Some(list)) if !list.get_ref().is_empty() => list.get_ref().clone(),
+            (None, Some(list)) => {
+                return Err(err(
+                    list.span(),
+                    "data.keep.one_of is empty, so no row could pass".into(),
+                    "list at least one accepted value",
+                ));
+            }
+            (Some(_), Some(_)) | (None, None) => {
+                return Err(err(
+                    rule.span(),
+                    "each [[data.keep]] needs exactly one of `equals` or `one_of`".into(),
+                    "write `equals = \"value\"` or `one_of = [\"a\", \"b\"]`",
+                ));
+            }
+        };
+        keep_columns.push(r.column.span());
+        keep.push(KeepRule { column, accepted });
+    }
+
+    let model_span = raw.model.span();
+    let model = raw.model.get_ref();
+    let response = nonempty(&model.response, "model.response", &err)?;
+    let covariate = nonempty(&model.covariate, "model.covariate", &err)?;
+    let group = nonempty(&model.group, "model.group", &err)?;
+    if covariate == response {
+        return Err(err(
+            model.covariate.span(),
+            format!("model.covariate and model.response are both `{response}`"),
+            "the covariate is the x of each line and the response its y: name two different columns",
+        ));
+    }
+    if group == response || group == covariate {
+        return Err(err(
+            model.group.span(),
+            format!("model.group `{group}` is also the response or the covariate"),
+            "the group column holds labels such as site or lot: name a third column",
+        ));
+    }
+    let (levels, level_spans) = match &model.levels {
+        None => (None, Vec::new()),
+        Some(list) => {
+            let entries = list.get_ref();
+            if entries.len() < 2 {
+                return Err(err(
+                    list.span(),
+                    "model.levels lists fewer than two groups; comparing lines needs at least two"
+                        .into(),
+                    "list every group to compare, or remove `levels` to use all groups in sorted order",
+                ));
+            }
+            let mut seen: Vec<&str> = Vec::new();
+            for entry in entries {
+                if seen.contains(&entry.get_ref().as_str()) {
+                    return Err(err(
+                        entry.span(),
+                        format!(
+                            "level `{}` is listed twice in model.levels",
+                            entry.get_ref()
+                        ),
+                        "list each level once",
+                    ));
+                }
+                seen.push(entry.get_ref());
+            }
+            (
+                Some(entries.iter().map(|e| e.get_ref().clone()).collect()),
+                entries.iter().map(|e| e.span()).collect(),
+            )
+        }
+    };
+    let adjust_at = match &model.adjust_at {
+        None => AdjustAt::Mean,
+        Some(value) => match value.get_ref() {
+            toml::Value::String(s) if s == "mean" => AdjustAt::Mean,
+            toml::Value::Float(f) if f.is_finite() => AdjustAt::Value(*f),
+            toml::Value::Integer(i) => AdjustAt::Value(*i as f64),
+            _ => {
+                return Err(err(
+                    value.span(),
+                    "model.adjust_at must be \"mean\" or a finite number".into(),
+                    "write `adjust_at = \"mean\"` or a covariate value such as `adjust_at = 25.0` (on the transformed scale)",
+                ));
+            }
+        },
+    };
+    let (response_transform, covariate_transform, rt_span, ct_span) = match &model.transform {
+        None => (
+            Transform::None,
+            Transform::None,
+            model_span.clone(),
+            model_span.clone(),
+        ),
+        Some(t) => (
+            t.response
+                .as_ref()
+                .map_or(Transform::None, |s| *s.get_ref()),
+            t.covariate
+                .as_ref()
+                .map_or(Transform::None, |s| *s.get_ref()),
+            t.response
+                .as_ref()
+                .map_or(model_span.clone(), Spanned::span),
+            t.covariate
+                .as_ref()
+                .map_or(model_span.clone(), Spanned::span),
+        ),
+    };
+
+    let tests = match &raw.tests {
+        None => TestSpec {
+            alpha: 0.05,
+            slopes_alpha: 0.05,
+            comparisons: Comparisons::Holm,
+        },
+        Some(t) => {
+            let t = t.get_ref();
+            TestSpec {
+                alpha: level(t.alpha.as_ref(), "tests.alpha", &err)?,
+                slopes_alpha: level(t.slopes_alpha.as_ref(), "tests.slopes_alpha", &err)?,
+                comparisons: t
+                    .comparisons
+                    .as_ref()
+                    .map_or(Comparisons::Holm, |c| *c.get_ref()),
+            }
+        }
+    };
+
+    let report = match &raw.report {
+        None => ReportSpec {
+            formats: vec![Format::Markdown, Format::Json],
+            out: None,
+        },
+        Some(r) => {
+            let r = r.get_ref();
+            let formats = match &r.formats {
+                None => vec![Format::Markdown, Format::Json],
+                Some(list) => {
+                    if list.get_ref().is_empty() {
+                        return Err(err(
+                            list.span(),
+                            "report.formats is empty, so the run would write nothing".into(),
+                            "use `formats = [\"markdown\", \"json\"]`",
+                        ));
+                    }
+                    let mut formats = Vec::new();
+                    for f in list.get_ref() {
+                        if formats.contains(f.get_ref()) {
+                            return Err(err(
+                                f.span(),
+                                format!("format \"{}\" is listed twice", f.get_ref().name()),
+                                "list each format once",
+                            ));
+                        }
+                        formats.push(*f.get_ref());
+                    }
+                    formats
+                }
+            };
+            let out = match &r.out {
+                Some(o) => Some(nonempty(o, "report.out", &err)?),
+                None => None,
+            };
+            ReportSpec { formats, out }
+        }
+    };
+
+    Ok(Plan {
+        title,
+        data: DataSpec {
+            path,
+            missing,
+            sha256,
+            keep,
+        },
+        model: ModelSpec {
+            response,
+            covariate,
+            group,
+            levels,
+            adjust_at,
+            response_transform,
+            covariate_transform,
+        },
+        tests,
+        report,
+        spans: PlanSpans {
+            data_path: data.path.span(),
+            data_sha256: data.sha256.as_ref().map(Spanned::span),
+            response: model.response.span(),
+            covariate: model.covariate.span(),
+            group: model.group.span(),
+            levels: level_spans,
+            keep_columns,
+            response_transform: rt_span,
+            covariate_transform: ct_span,
+        },
+    })
+}
+
+fn nonempty(
+    value: &Spanned<String>,
+    key: &str,
+    err: &impl Fn(Range<usize>, String, &str) -> PlanError,
+) -> Result<String, PlanError> {
+    let text = value.get_ref().trim();
+    if text.is_empty() {
+        return Err(err(
+            value.span(),
+            format!("{key} is empty"),
+            "give it a value",
+        ));
+    }
+    Ok(value.get_ref().clone())
+}
+
+fn level(
+    value: Option<&Spanned<f64>>,
+    key: &str,
+    err: &impl Fn(Range<usize>, String, &str) -> PlanError,
+) -> Result<f64, PlanError> {
+    let Some(value) = value else { return Ok(0.05) };
+    let v = *value.get_ref();
+    if !(v > 0.0 && v < 1.0) {
+        return Err(err(
+            value.span(),
+            format!("{key} must lie strictly between 0 and 1, found {v}"),
+            "use a level such as 0.05 (write 0.05, not 5 or 5%)",
+        ));
+    }
+    Ok(v)
+}
+
+#[cfg(test)]
+mod tests;

@@ -1,0 +1,4 @@
+//! Numerical building blocks: distributions and p-value adjustment.
+
+pub mod adjust;
+pub mod dist;
