@@ -15,7 +15,8 @@ mod gate;
 
 pub use error::AnalysisError;
 
-use crate::data::Dataset;
+use crate::data::{Dataset, GroupData};
+use crate::fit::lines::rss_about;
 use crate::fit::{CommonSlopeFit, GroupLine, OneLineFit, SeparateFit};
 use crate::plan::{AdjustAt, Plan};
 use crate::results::{DataAccount, ModelEcho, ModelFit, OneLine, Provenance, Results};
@@ -26,13 +27,29 @@ pub fn run(plan: &Plan, data: &Dataset, provenance: Provenance) -> Result<Result
     let mut warnings = Vec::new();
     let eligible = eligible::select(data, &mut warnings)?;
     let moments: Vec<_> = eligible.groups.iter().map(|g| g.moments).collect();
-    let lines: Vec<GroupLine> = moments
+    let lines: Vec<GroupLine> = eligible
+        .groups
         .iter()
-        .map(|m| GroupLine::fit(m).expect("eligible groups have covariate spread"))
+        .map(|g| {
+            GroupLine::fit(&g.moments)
+                .expect("eligible groups have covariate spread")
+                .with_points(points(g))
+        })
         .collect();
     let separate = SeparateFit::new(lines);
-    let common = CommonSlopeFit::fit(&moments).expect("eligible groups have covariate spread");
-    let one = OneLineFit::fit(&moments).expect("eligible groups have covariate spread");
+    let mut common = CommonSlopeFit::fit(&moments).expect("eligible groups have covariate spread");
+    common.rss = eligible
+        .groups
+        .iter()
+        .map(|g| rss_about(points(g), g.moments.mean_x, g.moments.mean_y, common.slope))
+        .sum();
+    let mut one = OneLineFit::fit(&moments).expect("eligible groups have covariate spread");
+    let all = one.line.moments;
+    one.line.rss = eligible
+        .groups
+        .iter()
+        .map(|g| rss_about(points(g), all.mean_x, all.mean_y, one.line.slope))
+        .sum();
     let levels: Vec<&str> = eligible.groups.iter().map(|g| g.level.as_str()).collect();
     let alpha = plan.tests.alpha;
 
@@ -94,6 +111,11 @@ pub fn run(plan: &Plan, data: &Dataset, provenance: Provenance) -> Result<Result
         warnings: Vec::new(),
     };
     Ok(decision::conclude(plan, results, warnings))
+}
+
+/// A group's (x, y) pairs in data order.
+fn points(g: &GroupData) -> impl Iterator<Item = (f64, f64)> + '_ {
+    g.x.iter().zip(g.y.iter())
 }
 
 fn one_line(one: &OneLineFit) -> OneLine {

@@ -1,1 +1,75 @@
+use super::*;
+use crate::{data, plan};
 
+fn run_csv(model_extra: &str, csv: &str) -> Result<Results, AnalysisError> {
+    let text = format!(
+        "title = \"t\"\n[data]\npath = \"d.csv\"\n[model]\nresponse = \"y\"\ncovariate = \"x\"\ngroup = \"g\"\n{model_extra}\n"
+    );
+    let plan = plan::load("p.toml", &text).unwrap();
+    let dataset = data::load(&plan, csv.as_bytes()).unwrap();
+    let provenance = Provenance {
+        tool_version: String::new(),
+        plan_sha256: String::new(),
+        data_sha256: String::new(),
+        plan_file: String::new(),
+        data_file: String::new(),
+    };
+    run(&plan, &dataset, provenance)
+}
+
+/// Invented rows: two parallel groups (slope 2), noise by a fixed pattern.
+fn parallel(extra: &str) -> String {
+    let mut s = String::from("g,x,y\n");
+    for i in 0..12 {
+        let e = [0.3, -0.2, 0.1, -0.4, 0.2, 0.0][i % 6];
+        s.push_str(&format!("a,{i},{}\n", 1.0 + 2.0 * i as f64 + e));
+        s.push_str(&format!("b,{i},{}\n", 4.0 + 2.0 * i as f64 - e));
+    }
+    s.push_str(extra);
+    s
+}
+
+#[test]
+fn small_and_flat_groups_are_left_out_with_warnings() {
+    let r = run_csv("", &parallel("c,1,1\nc,2,2\nd,5,1\nd,5,2\nd,5,3\n")).unwrap();
+    let levels: Vec<_> = r.groups.iter().map(|g| g.level.as_str()).collect();
+    assert_eq!(levels, ["a", "b"]);
+    assert_eq!(r.data.rows_dropped["group_too_small"], 2);
+    assert_eq!(r.data.rows_dropped["no_covariate_spread"], 3);
+    assert_eq!(r.data.rows_used, 24);
+    assert!(r.warnings.iter().any(|w| w == "Group `c` was left out: it has 2 usable rows; a line needs at least 3."));
+    assert!(r.warnings.iter().any(|w| w.starts_with("Group `d` was left out: it has the same covariate value")));
+}
+
+#[test]
+fn one_usable_group_is_an_error() {
+    let e = run_csv("", "g,x,y\na,1,1\na,2,3\na,3,2\nb,1,1\n").unwrap_err();
+    assert!(e.to_string().starts_with("only one group (`a`) has enough usable rows"), "{e}");
+    assert!(e.to_string().contains("`b` has 1 usable row; a line needs at least 3"), "{e}");
+}
+
+#[test]
+fn parallel_groups_lead_with_the_common_slope() {
+    let r = run_csv("", &parallel("")).unwrap();
+    assert!(r.decision.homogeneous);
+    assert_eq!(r.decision.lead, "common-slope");
+    // The noise pattern is mirrored, so the common slope is exactly 2 up to rounding.
+    assert!((r.common_slope.slope - 2.0).abs() < 0.05);
+    assert!((r.pairwise_adjusted[0].difference + 3.0).abs() < 0.2);
+}
+
+#[test]
+fn crossing_groups_warn_that_adjusted_means_are_local() {
+    let mut s = String::from("g,x,y\n");
+    for i in 0..12 {
+        let e = [0.3, -0.2, 0.1, -0.4, 0.2, 0.0][i % 6];
+        s.push_str(&format!("a,{i},{}\n", 1.0 + 2.0 * i as f64 + e));
+        s.push_str(&format!("b,{i},{}\n", 20.0 - 1.0 * i as f64 - e));
+    }
+    let r = run_csv("adjust_at = 40", &s).unwrap();
+    assert!(!r.decision.homogeneous);
+    assert_eq!(r.decision.lead, "separate-slopes");
+    assert!(r.warnings.iter().any(|w| w.starts_with("Slopes differ, so the adjusted means compare the groups at x = 40.00 only")));
+    assert!(r.warnings.iter().any(|w| w.starts_with("Adjusted means for `a`, `b` are extrapolations")));
+    assert!(r.adjusted_means.iter().all(|m| !m.within_range));
+}

@@ -1,1 +1,133 @@
+use super::*;
+use crate::plan;
 
+fn plan_with(extra_model: &str, extra_data: &str) -> Plan {
+    let text = format!(
+        "title = \"t\"\n[data]\npath = \"d.csv\"\n{extra_data}\n[model]\nresponse = \"y\"\ncovariate = \"x\"\ngroup = \"g\"\n{extra_model}\n"
+    );
+    plan::load("p.toml", &text).unwrap()
+}
+
+fn load_str(plan: &Plan, csv: &str) -> Result<Dataset, DataError> {
+    load(plan, csv.as_bytes())
+}
+
+#[test]
+fn rows_are_counted_by_first_reason_in_order() {
+    let p = plan_with("", "[[data.keep]]\ncolumn = \"s\"\nequals = \"ok\"");
+    let csv = "g,x,y,s\na,1,2,ok\na,NA,,ok\nb,,3,ok\n,1,2,ok\nb,1,2,bad\nb,2,3,ok\n";
+    let d = load_str(&p, csv).unwrap();
+    assert_eq!(d.rows_read, 6);
+    assert_eq!(d.dropped[&DropReason::FilteredOut], 1);
+    // Row 2 has both cells missing: it counts once, as a missing response.
+    assert_eq!(d.dropped[&DropReason::MissingResponse], 1);
+    assert_eq!(d.dropped[&DropReason::MissingCovariate], 1);
+    assert_eq!(d.dropped[&DropReason::MissingGroup], 1);
+    assert_eq!(d.groups.len(), 2);
+    assert_eq!(d.groups[0].rows.to_vec(), vec![1]);
+    assert_eq!(d.groups[1].rows.to_vec(), vec![6]);
+}
+
+#[test]
+fn groups_follow_levels_or_sort_as_text() {
+    let csv = "g,x,y\nb,1,1\nB,1,1\na,1,1\n";
+    let sorted = load_str(&plan_with("", ""), csv).unwrap();
+    let labels: Vec<_> = sorted.groups.iter().map(|g| g.level.as_str()).collect();
+    // Byte order: upper case sorts before lower case.
+    assert_eq!(labels, ["B", "a", "b"]);
+    let listed = load_str(&plan_with("levels = [\"b\", \"a\", \"B\"]", ""), csv).unwrap();
+    let labels: Vec<_> = listed.groups.iter().map(|g| g.level.as_str()).collect();
+    assert_eq!(labels, ["b", "a", "B"]);
+}
+
+#[test]
+fn levels_are_checked_against_the_data() {
+    let e = load_str(&plan_with("levels = [\"a\", \"bb\"]", ""), "g,x,y\na,1,1\nb,1,1\n").unwrap_err();
+    assert_eq!(
+        e,
+        DataError::UnlistedLevel {
+            row: 2,
+            line: 3,
+            label: "b".into()
+        }
+    );
+    let e = load_str(&plan_with("levels = [\"a\", \"bee\"]", ""), "g,x,y\na,1,1\nbe,1,1\n");
+    assert!(matches!(e, Err(DataError::UnlistedLevel { .. })));
+    let e = load_str(&plan_with("levels = [\"a\", \"bee\"]", ""), "g,x,y\na,1,1\n").unwrap_err();
+    assert!(e.to_string().contains("level `bee` listed in model.levels does not occur"), "{e}");
+}
+
+#[test]
+fn cells_are_trimmed_and_bom_is_ignored() {
+    let d = load_str(&plan_with("", ""), "\u{feff}g, x ,y\n a , 1.5 , 2 \na,2,3\n").unwrap();
+    assert_eq!(d.columns, ["g", "x", "y"]);
+    assert_eq!(d.groups[0].level, "a");
+    assert_eq!(d.groups[0].x.to_vec(), vec![1.5, 2.0]);
+}
+
+#[test]
+fn non_numbers_name_row_and_column() {
+    let e = load_str(&plan_with("", ""), "g,x,y\na,1,2\na,abc,2\n").unwrap_err();
+    assert_eq!(
+        e.to_string(),
+        "data row 2 (file line 3), column `x` (column 2) holds `abc`, which is not a number"
+    );
+    let e = load_str(&plan_with("", ""), "g,x,y\na,1,inf\n").unwrap_err();
+    assert!(e.to_string().contains("holds `inf`, which is not a finite number"), "{e}");
+}
+
+#[test]
+fn transforms_apply_and_report_their_domain() {
+    let p = plan_with("[model.transform]\nresponse = \"log\"\ncovariate = \"sqrt\"", "");
+    let d = load_str(&p, "g,x,y\na,4,1\na,9,2.718281828459045\n").unwrap();
+    assert_eq!(d.groups[0].x.to_vec(), vec![2.0, 3.0]);
+    assert!((d.groups[0].y.get(1).unwrap() - 1.0).abs() < 1e-15);
+    let e = load_str(&p, "g,x,y\na,4,1\na,4,0\na,4,-2\n").unwrap_err();
+    assert_eq!(
+        e.to_string(),
+        "log of `y` needs positive values, but 2 used rows have other values; first: row 2 (0), row 3 (-2)"
+    );
+}
+
+#[test]
+fn header_problems() {
+    let p = plan_with("", "");
+    assert_eq!(load_str(&p, ""), Err(DataError::Empty));
+    assert_eq!(load_str(&p, "g,x,y\n"), Err(DataError::NoRows));
+    assert!(matches!(
+        load_str(&p, "g,x,x,y\n"),
+        Err(DataError::DuplicateColumn { first: 2, second: 3, .. })
+    ));
+    match load_str(&p, "grp,x,y\na,1,1\n") {
+        Err(DataError::MissingColumn { column, key, suggestion, .. }) => {
+            assert_eq!(column, "g");
+            assert_eq!(key, PlanKey::Group);
+            assert_eq!(suggestion, None);
+        }
+        other => panic!("{other:?}"),
+    }
+    match load_str(&plan_with("", "").clone(), "g,xx,y\na,1,1\n") {
+        Err(DataError::MissingColumn { suggestion, .. }) => assert_eq!(suggestion.as_deref(), Some("xx")),
+        other => panic!("{other:?}"),
+    }
+}
+
+#[test]
+fn ragged_rows_are_refused_with_their_line() {
+    let e = load_str(&plan_with("", ""), "g,x,y\na,1,1\na,1\n").unwrap_err();
+    assert_eq!(
+        e,
+        DataError::Ragged {
+            row: 2,
+            line: 3,
+            expected: 3,
+            found: 2
+        }
+    );
+}
+
+#[test]
+fn quoted_fields_keep_commas() {
+    let d = load_str(&plan_with("", ""), "g,x,y\n\"a, left\",1,1\n\"a, left\",2,2\n").unwrap();
+    assert_eq!(d.groups[0].level, "a, left");
+}

@@ -1,0 +1,804 @@
+//! What `slopewise run` does with bad input: each test is one line of the contract
+//! ("Errors go to stderr and say what is wrong, where (file, TOML line and column,
+//! data row and column), and how to fix it"; "Outputs appear whole or not at all";
+//! "Exit status: 0 when every plan ran; non-zero otherwise").
+//!
+//! Every failing case also gets the harness's standing checks (see `common`): a
+//! non-zero exit status, no panic, and the folder left exactly as it was, so no
+//! report folder and no hidden `.NAME.partial-*` staging folder. Line and column
+//! numbers are counted by hand in the plan text each test states (1-based, columns
+//! in characters). All data are invented for these tests.
+
+mod common;
+
+use common::{BASE_PLAN, THREE_PLOTS, Test};
+
+// ---- the data file ----------------------------------------------------------
+
+#[test]
+fn missing_data_file_points_at_data_path() {
+    Test::new("missing_data_file")
+        .plan(BASE_PLAN)
+        .fails()
+        .stderr_has(&[
+            "error: cannot open the data file data.csv",
+            "--> plan.toml:4:8",
+            r#" 4 | path = "data.csv""#,
+            "help: data.path is relative to the folder that holds the plan file",
+        ])
+        .run();
+}
+
+#[test]
+fn empty_data_file() {
+    Test::new("empty_data_file")
+        .plan(BASE_PLAN)
+        .file("data.csv", "")
+        .fails()
+        .stderr_has(&[
+            "error: the data file is empty",
+            "--> data.csv",
+            "help: the file needs a header row naming the columns, then one row per observation",
+        ])
+        .run();
+}
+
+#[test]
+fn header_only_data_file() {
+    Test::new("header_only")
+        .plan(BASE_PLAN)
+        .data("plot,length_cm,mass_g")
+        .fails()
+        .stderr_has(&[
+            "error: the data file has a header row but no data rows",
+            "--> data.csv",
+            "help: the file needs a header row naming the columns",
+        ])
+        .run();
+}
+
+#[test]
+fn duplicate_column_names() {
+    Test::new("duplicate_columns")
+        .plan(BASE_PLAN)
+        .data(
+            "
+            plot,length_cm,mass_g,length_cm
+            north,4.0,1.12,4.1
+            ",
+        )
+        .fails()
+        .stderr_has(&[
+            "error: column name `length_cm` appears twice in the header (columns 2 and 4)",
+            "--> data.csv",
+            "help: rename one of the columns so every header name is unique",
+        ])
+        .run();
+}
+
+#[test]
+fn plan_column_absent_from_data_suggests_the_header_name() {
+    Test::new("column_absent")
+        .plan(
+            r#"
+            title = "Leaf mass by hillside plot (invented test data)"
+
+            [data]
+            path = "data.csv"
+
+            [model]
+            response = "mass-g"
+            covariate = "length_cm"
+            group = "plot"
+
+            [report]
+            out = "out"
+            "#,
+        )
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "error: column `mass-g` named by model.response is not in the data",
+            "--> data.csv",
+            "--> plan.toml:7:12",
+            r#" 7 | response = "mass-g""#,
+            "help: did you mean `mass_g`?",
+            "help: columns in the data: plot, length_cm, mass_g",
+        ])
+        .run();
+}
+
+#[test]
+fn non_numeric_cell_names_data_row_and_column() {
+    Test::new("non_numeric_cell")
+        .plan(BASE_PLAN)
+        .data(
+            "
+            plot,length_cm,mass_g
+            north,4.0,1.12
+            north,5.5,n/a
+            north,7.0,2.05
+            ",
+        )
+        .fails()
+        .stderr_has(&[
+            "error: data row 2 (file line 3), column `mass_g` (column 3) holds `n/a`, which is not a number",
+            "--> data.csv",
+            "add that text to data.missing",
+        ])
+        .run();
+}
+
+#[test]
+fn infinite_value_in_numeric_cell() {
+    Test::new("infinite_value")
+        .plan(BASE_PLAN)
+        .data(
+            "
+            plot,length_cm,mass_g
+            north,4.0,1.12
+            north,inf,1.58
+            north,7.0,2.05
+            ",
+        )
+        .fails()
+        .stderr_has(&[
+            "error: data row 2 (file line 3), column `length_cm` (column 2) holds `inf`, which is not a finite number",
+            "--> data.csv",
+            "help: replace it with a finite value, or with a missing-value token from data.missing",
+        ])
+        .run();
+}
+
+#[test]
+fn log_of_non_positive_values_names_the_first_rows() {
+    Test::new("log_non_positive")
+        .plan(
+            r#"
+            title = "Leaf mass by hillside plot (invented test data)"
+
+            [data]
+            path = "data.csv"
+
+            [model]
+            response = "mass_g"
+            covariate = "length_cm"
+            group = "plot"
+
+            [model.transform]
+            response = "log"
+
+            [report]
+            out = "out"
+            "#,
+        )
+        .data(
+            "
+            plot,length_cm,mass_g
+            north,4.0,1.12
+            north,5.5,0
+            north,7.0,2.05
+            ridge,4.5,1.71
+            ridge,6.0,-0.5
+            ridge,7.5,2.66
+            ",
+        )
+        .fails()
+        .stderr_has(&[
+            "error: log of `mass_g` needs positive values, but 2 used rows have other values",
+            "first: row 2 (0), row 5 (-0.5)",
+            "--> data.csv",
+            "--> plan.toml:12:12",
+            r#"12 | response = "log""#,
+            "transform chosen here",
+            "help: choose another transform in [model.transform], or exclude those rows with [[data.keep]]",
+        ])
+        .run();
+}
+
+#[test]
+fn ragged_row() {
+    Test::new("ragged_row")
+        .plan(BASE_PLAN)
+        .data(
+            "
+            plot,length_cm,mass_g
+            north,4.0,1.12
+            north,5.5,1.58,extra
+            north,7.0,2.05
+            ",
+        )
+        .fails()
+        .stderr_has(&[
+            "error: data row 2 (file line 3) has 4 fields, but the header has 3",
+            "--> data.csv",
+            "help: every row needs as many fields as the header",
+        ])
+        .run();
+}
+
+#[test]
+fn data_sha256_pin_mismatch_shows_both_hashes() {
+    // The pin is the SHA-256 of empty input; the actual value is THREE_PLOTS's,
+    // both computed with GNU coreutils `sha256sum`.
+    Test::new("sha256_mismatch")
+        .plan(
+            r#"
+            title = "Leaf mass by hillside plot (invented test data)"
+
+            [data]
+            path = "data.csv"
+            sha256 = "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855"
+
+            [model]
+            response = "mass_g"
+            covariate = "length_cm"
+            group = "plot"
+
+            [report]
+            out = "out"
+            "#,
+        )
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "error: the data file data.csv is not the one the plan pins",
+            "its SHA-256 is a3e389a125124950acfd170de5c2c856608be881bab49275858eaa2d77991eae",
+            "the plan expects e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855",
+            "--> plan.toml:5:10",
+            "pinned here",
+            "help: if the new data are intended, update data.sha256; otherwise restore the pinned file",
+        ])
+        .run();
+}
+
+// ---- groups -------------------------------------------------------------------
+
+#[test]
+fn group_with_fewer_than_three_usable_rows_is_left_out_with_a_warning() {
+    // `east` has three rows, but one lacks the response, so two are usable.
+    let out = Test::new("group_too_small")
+        .plan(BASE_PLAN)
+        .data(&format!(
+            "{THREE_PLOTS}east,5.0,1.40\neast,6.0,NA\neast,7.0,1.90\n"
+        ))
+        .succeeds()
+        .stdout_has(&["plan.toml: wrote out"])
+        .run();
+    assert_eq!(out.entries("out"), ["report.md", "results.json"]);
+    let r = out.json("out/results.json");
+    let warning = "Group `east` was left out: it has 2 usable rows; a line needs at least 3.";
+    let warnings = r["warnings"].as_array().expect("warnings is a list");
+    assert!(
+        warnings.iter().any(|w| w == warning),
+        "warnings: {warnings:?}"
+    );
+    assert_eq!(r["data"]["rows_read"], 18);
+    assert_eq!(r["data"]["rows_used"], 15);
+    assert_eq!(r["data"]["rows_dropped"]["group_too_small"], 2);
+    assert_eq!(r["data"]["rows_dropped"]["missing_response"], 1);
+    assert_eq!(r["data"]["groups_excluded"][0]["level"], "east");
+    let levels: Vec<&str> = r["groups"]
+        .as_array()
+        .expect("groups is a list")
+        .iter()
+        .map(|g| g["level"].as_str().expect("level is text"))
+        .collect();
+    assert_eq!(levels, ["north", "ridge", "south"]);
+    let report = out.read("out/report.md");
+    assert!(
+        report.contains("was left out: it has 2 usable rows; a line needs at least 3"),
+        "{report}"
+    );
+}
+
+#[test]
+fn group_without_covariate_spread_is_left_out_with_a_warning() {
+    let out = Test::new("no_covariate_spread")
+        .plan(BASE_PLAN)
+        .data(&format!(
+            "{THREE_PLOTS}east,6.0,1.40\neast,6.0,1.70\neast,6.0,1.90\n"
+        ))
+        .succeeds()
+        .run();
+    let r = out.json("out/results.json");
+    let warning = "Group `east` was left out: it has the same covariate value in every row, so it has no slope.";
+    let warnings = r["warnings"].as_array().expect("warnings is a list");
+    assert!(
+        warnings.iter().any(|w| w == warning),
+        "warnings: {warnings:?}"
+    );
+    assert_eq!(r["data"]["rows_used"], 15);
+    assert_eq!(r["data"]["rows_dropped"]["no_covariate_spread"], 3);
+    assert_eq!(r["groups"].as_array().map(Vec::len), Some(3));
+    let report = out.read("out/report.md");
+    assert!(
+        report.contains("was left out: it has the same covariate value in every row"),
+        "{report}"
+    );
+}
+
+#[test]
+fn only_one_group_left_after_exclusions() {
+    Test::new("one_group_left")
+        .plan(BASE_PLAN)
+        .data(
+            "
+            plot,length_cm,mass_g
+            north,4.0,1.12
+            north,5.5,1.58
+            north,7.0,2.05
+            ridge,4.5,1.71
+            ridge,6.0,2.10
+            ",
+        )
+        .fails()
+        .stderr_has(&[
+            "error: only one group (`north`) has enough usable rows to fit a line; comparing lines needs at least two",
+            "`ridge` has 2 usable rows; a line needs at least 3",
+            "--> data.csv",
+            "help: each group needs at least 3 usable rows with at least two different covariate values",
+        ])
+        .run();
+}
+
+#[test]
+fn single_group_in_the_data() {
+    Test::new("single_group")
+        .plan(BASE_PLAN)
+        .data(
+            "
+            plot,length_cm,mass_g
+            north,4.0,1.12
+            north,5.5,1.58
+            north,7.0,2.05
+            north,8.5,2.41
+            ",
+        )
+        .fails()
+        .stderr_has(&[
+            "error: only one group (`north`) has enough usable rows to fit a line; comparing lines needs at least two",
+            "--> data.csv",
+            "check model.group, data.keep and data.missing",
+        ])
+        .run();
+}
+
+#[test]
+fn level_listed_in_plan_but_absent_from_data() {
+    Test::new("level_absent")
+        .plan(
+            r#"
+            title = "Leaf mass by hillside plot (invented test data)"
+
+            [data]
+            path = "data.csv"
+
+            [model]
+            response = "mass_g"
+            covariate = "length_cm"
+            group = "plot"
+            levels = ["north", "ridge", "south", "west"]
+
+            [report]
+            out = "out"
+            "#,
+        )
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "error: level `west` listed in model.levels does not occur in column `plot`",
+            "--> plan.toml:10:38",
+            "named here",
+            "help: remove it from model.levels or check the spelling",
+        ])
+        .run();
+}
+
+#[test]
+#[ignore = "BUG: a misspelt entry in model.levels gets no did-you-mean; the error is about the data label instead"]
+fn misspelt_level_suggests_the_data_label() {
+    // Observed: "error: data row 11 (file line 12) has group `south`, which
+    // model.levels does not list" with help "add the label to model.levels, ...":
+    // no hint that the listed `South` is the typo, and no plan line. (Besides,
+    // `AbsentLevel`'s suggestion can never fire: when levels are listed the loader
+    // never records the labels it meets, so it suggests from an empty list.)
+    Test::new("level_misspelt")
+        .plan(
+            r#"
+            title = "Leaf mass by hillside plot (invented test data)"
+
+            [data]
+            path = "data.csv"
+
+            [model]
+            response = "mass_g"
+            covariate = "length_cm"
+            group = "plot"
+            levels = ["north", "ridge", "South"]
+
+            [report]
+            out = "out"
+            "#,
+        )
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&["`South`", "did you mean `south`?", "--> plan.toml:10:29"])
+        .run();
+}
+
+#[test]
+fn data_label_not_in_levels() {
+    Test::new("label_not_listed")
+        .plan(
+            r#"
+            title = "Leaf mass by hillside plot (invented test data)"
+
+            [data]
+            path = "data.csv"
+
+            [model]
+            response = "mass_g"
+            covariate = "length_cm"
+            group = "plot"
+            levels = ["north", "ridge"]
+
+            [report]
+            out = "out"
+            "#,
+        )
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "error: data row 11 (file line 12) has group `south`, which model.levels does not list",
+            "--> data.csv",
+            "help: add the label to model.levels, or leave those rows out with a [[data.keep]] filter on the group column",
+        ])
+        .run();
+}
+
+// ---- the plan file ------------------------------------------------------------
+
+#[test]
+fn plan_file_that_does_not_exist() {
+    Test::new("plan_missing")
+        .args(&["run", "nursery.toml"])
+        .fails()
+        .stderr_has(&[
+            "error: cannot read the plan file nursery.toml",
+            "help: check the path",
+        ])
+        .run();
+}
+
+#[test]
+fn unknown_plan_key_suggests_the_known_one() {
+    Test::new("unknown_key")
+        .plan(
+            r#"
+            title = "Leaf mass by hillside plot (invented test data)"
+
+            [data]
+            path = "data.csv"
+
+            [model]
+            response = "mass_g"
+            covariate = "length_cm"
+            group = "plot"
+            adjst_at = "mean"
+
+            [report]
+            out = "out"
+            "#,
+        )
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "error: unknown key `adjst_at`",
+            "--> plan.toml:10:1",
+            r#"10 | adjst_at = "mean""#,
+            "help: did you mean `adjust_at`?",
+            "help: keys allowed here: response, covariate, group, levels, adjust_at, transform",
+        ])
+        .run();
+}
+
+/// `alpha = "0.05"`: a number written as text.
+const QUOTED_ALPHA_PLAN: &str = r#"
+    title = "Leaf mass by hillside plot (invented test data)"
+
+    [data]
+    path = "data.csv"
+
+    [model]
+    response = "mass_g"
+    covariate = "length_cm"
+    group = "plot"
+
+    [tests]
+    alpha = "0.05"
+
+    [report]
+    out = "out"
+"#;
+
+#[test]
+fn wrong_type_of_value() {
+    Test::new("wrong_type")
+        .plan(QUOTED_ALPHA_PLAN)
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "error: wrong type of value",
+            r#"string "0.05""#,
+            "--> plan.toml:12:9",
+            r#"12 | alpha = "0.05""#,
+            r#"help: text goes in quotes ("..."), numbers without"#,
+        ])
+        .run();
+}
+
+#[test]
+#[ignore = "BUG: type errors speak Rust/serde (`expected f64`, `expected a sequence`)"]
+fn wrong_type_of_value_is_named_in_plain_words() {
+    // Observed: "error: wrong type of value: invalid type: string \"0.05\", expected f64".
+    // A plan author cannot be expected to know `f64`; the same goes for
+    // `levels = "A"` -> "expected a sequence".
+    let out = Test::new("wrong_type_plain")
+        .plan(QUOTED_ALPHA_PLAN)
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&["tests.alpha", "a number"])
+        .run();
+    assert!(!out.stderr.contains("f64"), "{}", out.stderr);
+}
+
+#[test]
+fn alpha_outside_zero_one() {
+    for (name, value) in [("alpha_above_one", "1.5"), ("alpha_zero", "0")] {
+        let what = format!("error: tests.alpha must lie strictly between 0 and 1, found {value}");
+        Test::new(name)
+            .plan(&format!(
+                r#"
+                title = "Leaf mass by hillside plot (invented test data)"
+
+                [data]
+                path = "data.csv"
+
+                [model]
+                response = "mass_g"
+                covariate = "length_cm"
+                group = "plot"
+
+                [tests]
+                alpha = {value}
+
+                [report]
+                out = "out"
+                "#
+            ))
+            .data(THREE_PLOTS)
+            .fails()
+            .stderr_has(&[
+                what.as_str(),
+                "--> plan.toml:12:9",
+                "help: use a level such as 0.05 (write 0.05, not 5 or 5%)",
+            ])
+            .run();
+    }
+}
+
+#[test]
+fn toml_syntax_error() {
+    Test::new("toml_syntax")
+        .plan(
+            r#"
+            title = "Leaf mass by hillside plot (invented test data)"
+
+            [data]
+            path = "data.csv"
+
+            [model]
+            response = "mass_g"
+            covariate = "length_cm
+            group = "plot"
+
+            [report]
+            out = "out"
+            "#,
+        )
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "error: the plan is not valid TOML",
+            "--> plan.toml:8:23",
+            r#" 8 | covariate = "length_cm"#,
+            "help: check quotes, brackets and `=` signs on this line",
+        ])
+        .run();
+}
+
+#[test]
+fn missing_required_key() {
+    Test::new("missing_key")
+        .plan(
+            r#"
+            title = "Leaf mass by hillside plot (invented test data)"
+
+            [data]
+            path = "data.csv"
+
+            [model]
+            response = "mass_g"
+            group = "plot"
+
+            [report]
+            out = "out"
+            "#,
+        )
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "error: required key `covariate` is missing",
+            "--> plan.toml:6:1",
+            " 6 | [model]",
+            "help: add `covariate = ...` to this table",
+        ])
+        .run();
+}
+
+// ---- the output folder ----------------------------------------------------------
+
+#[test]
+fn no_output_folder_configured() {
+    Test::new("no_output_folder")
+        .plan(
+            r#"
+            title = "Leaf mass by hillside plot (invented test data)"
+
+            [data]
+            path = "data.csv"
+
+            [model]
+            response = "mass_g"
+            covariate = "length_cm"
+            group = "plot"
+            "#,
+        )
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "error: the plan plan.toml names no output folder",
+            r#"help: add `out = "../reports/NAME"` under [report], or pass `--out DIR`"#,
+        ])
+        .run();
+}
+
+#[test]
+fn output_folder_holding_a_foreign_file_is_refused_and_left_untouched() {
+    let notes = "field notes from the ridge plot, not written by slopewise\n";
+    let out = Test::new("foreign_output")
+        .plan(BASE_PLAN)
+        .data(THREE_PLOTS)
+        .file("out/notes.txt", notes)
+        .fails()
+        .stderr_has(&[
+            "error: the output folder already exists and holds `notes.txt`, which slopewise did not write: out",
+            "help: slopewise replaces only folders it wrote; choose a new or empty folder with report.out or --out",
+        ])
+        .run();
+    // The harness already checked that nothing changed; say it once more in words.
+    assert_eq!(out.entries("out"), ["notes.txt"]);
+    assert_eq!(out.read("out/notes.txt"), notes);
+}
+
+// ---- several plans ----------------------------------------------------------------
+
+#[test]
+fn several_plans_one_failing_the_others_still_write() {
+    let all_plots = r#"
+        title = "All plots (invented test data)"
+
+        [data]
+        path = "data.csv"
+
+        [model]
+        response = "mass_g"
+        covariate = "length_cm"
+        group = "plot"
+    "#;
+    let broken = r#"
+        title = "A misspelt response (invented test data)"
+
+        [data]
+        path = "data.csv"
+
+        [model]
+        response = "mass-g"
+        covariate = "length_cm"
+        group = "plot"
+    "#;
+    let two_plots = r#"
+        title = "North and ridge only (invented test data)"
+
+        [data]
+        path = "data.csv"
+
+        [[data.keep]]
+        column = "plot"
+        one_of = ["north", "ridge"]
+
+        [model]
+        response = "mass_g"
+        covariate = "length_cm"
+        group = "plot"
+    "#;
+    let out = Test::new("several_plans")
+        .file("all-plots.toml", common::unindent(all_plots))
+        .file("broken.toml", common::unindent(broken))
+        .file("two-plots.toml", common::unindent(two_plots))
+        .data(THREE_PLOTS)
+        .args(&[
+            "run",
+            "all-plots.toml",
+            "broken.toml",
+            "two-plots.toml",
+            "--out",
+            "reports",
+        ])
+        .fails_with_outputs()
+        .stdout_has(&[
+            "all-plots.toml: wrote reports/all-plots",
+            "two-plots.toml: wrote reports/two-plots",
+            "2 of 3 plans ran; 1 failed",
+        ])
+        .stderr_has(&[
+            "error: column `mass-g` named by model.response is not in the data",
+            "--> broken.toml:7:12",
+        ])
+        .run();
+    assert_eq!(out.entries("reports"), ["all-plots", "two-plots"]);
+    for (folder, title, groups) in [
+        ("all-plots", "All plots (invented test data)", 3),
+        ("two-plots", "North and ridge only (invented test data)", 2),
+    ] {
+        assert_eq!(
+            out.entries(&format!("reports/{folder}")),
+            ["report.md", "results.json"]
+        );
+        let r = out.json(&format!("reports/{folder}/results.json"));
+        assert_eq!(r["title"], title);
+        assert_eq!(r["groups"].as_array().map(Vec::len), Some(groups));
+    }
+}
+
+#[test]
+#[ignore = "BUG: two plans with the same file stem under --out write the same folder; the second silently replaces the first"]
+fn several_plans_with_the_same_stem_are_refused() {
+    // Observed: stdout "a/p.toml: wrote reports/p", "b/p.toml: wrote reports/p",
+    // "2 of 2 plans ran; 0 failed", exit status 0; reports/p holds plan b's results
+    // only, so plan a's report is lost without a word.
+    let plan = |title: &str| {
+        common::unindent(&format!(
+            r#"
+            title = "{title}"
+
+            [data]
+            path = "../data.csv"
+
+            [model]
+            response = "mass_g"
+            covariate = "length_cm"
+            group = "plot"
+            "#
+        ))
+    };
+    Test::new("same_stem")
+        .file("a/p.toml", plan("Plan a (invented test data)"))
+        .file("b/p.toml", plan("Plan b (invented test data)"))
+        .data(THREE_PLOTS)
+        .args(&["run", "a/p.toml", "b/p.toml", "--out", "reports"])
+        .fails_with_outputs()
+        .stderr_has(&["a/p.toml", "b/p.toml"])
+        .run();
+}
