@@ -29,14 +29,33 @@ fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
     let several = plans.len() > 1;
     let mut failed = 0;
     for plan_path in plans {
+        let stem = plan_path.file_stem().unwrap_or_default();
         let target = out.map(|o| {
             if several {
-                o.join(plan_path.file_stem().unwrap_or_default())
+                o.join(stem)
             } else {
                 o.to_path_buf()
             }
         });
-        match run_plan(plan_path, target.as_deref()) {
+        let clash: Vec<String> = plans
+            .iter()
+            .filter(|p| *p != plan_path && p.file_stem().unwrap_or_default() == stem)
+            .map(|p| p.display().to_string())
+            .collect();
+        let outcome = match (&target, clash.is_empty()) {
+            (Some(t), false) if several => Err(Diagnostic::new(format!(
+                "{} and {} share the file name stem `{}`, so both would write {}",
+                plan_path.display(),
+                clash.join(", "),
+                stem.to_string_lossy(),
+                t.display()
+            ))
+            .help(
+                "rename one of the plan files, or run them separately with different --out folders",
+            )),
+            _ => run_plan(plan_path, target.as_deref()),
+        };
+        match outcome {
             Ok(written) => println!("{}: wrote {}", plan_path.display(), written.display()),
             Err(d) => {
                 failed += 1;

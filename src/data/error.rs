@@ -151,7 +151,7 @@ pub enum DataError {
     },
     /// A group label that `model.levels` does not list.
     #[error(
-        "data row {row} (file line {line}) has group `{label}`, which model.levels does not list"
+        "data row {row} (file line {line}) has group `{label}` in column `{column}`, which model.levels does not list"
     )]
     UnlistedLevel {
         /// Data row.
@@ -160,6 +160,10 @@ pub enum DataError {
         line: u64,
         /// The label.
         label: String,
+        /// The group column.
+        column: String,
+        /// The listed level closest to the label (its index and text), a likely typo.
+        near: Option<(usize, String)>,
     },
     /// A level listed in the plan that no row carries.
     #[error("level `{level}` listed in model.levels does not occur in column `{column}`")]
@@ -170,8 +174,6 @@ pub enum DataError {
         index: usize,
         /// The group column.
         column: String,
-        /// A close label in the data, if any.
-        suggestion: Option<String>,
     },
     /// More rows than row numbers can hold.
     #[error("the data file has more than {max} rows, which slopewise does not support")]
@@ -183,7 +185,7 @@ pub enum DataError {
 
 fn list_rows(rows: &[(u64, f64)]) -> String {
     rows.iter()
-        .map(|(r, v)| format!("row {r} ({v})"))
+        .map(|(r, v)| format!("data row {r} ({v})"))
         .collect::<Vec<_>>()
         .join(", ")
 }
@@ -194,6 +196,10 @@ impl DataError {
         match self {
             DataError::MissingColumn { key, .. } => Some(*key),
             DataError::AbsentLevel { index, .. } => Some(PlanKey::Level(*index)),
+            DataError::UnlistedLevel {
+                near: Some((index, _)),
+                ..
+            } => Some(PlanKey::Level(*index)),
             _ => None,
         }
     }
@@ -234,13 +240,18 @@ impl DataError {
             DataError::OutsideDomain { .. } => d.help(
                 "choose another transform in [model.transform], or exclude those rows with [[data.keep]]",
             ),
-            DataError::UnlistedLevel { .. } => d.help(
-                "add the label to model.levels, or leave those rows out with a [[data.keep]] filter on the group column",
-            ),
-            DataError::AbsentLevel { suggestion, .. } => match suggestion {
-                Some(s) => d.help(format!("did you mean `{s}`?")),
-                None => d.help("remove it from model.levels or check the spelling"),
-            },
+            DataError::UnlistedLevel { near, label, .. } => {
+                let d = match near {
+                    Some((_, level)) => d.help(format!(
+                        "model.levels lists `{level}`; did you mean `{label}`? Labels must match exactly, case included"
+                    )),
+                    None => d,
+                };
+                d.help(
+                    "add the label to model.levels, or leave those rows out with a [[data.keep]] filter on the group column",
+                )
+            }
+            DataError::AbsentLevel { .. } => d.help("remove it from model.levels or check its spelling against the data"),
             DataError::TooManyRows { .. } => d.help("split the file"),
         }
     }

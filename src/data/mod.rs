@@ -187,10 +187,21 @@ pub fn load<R: Read>(plan: &Plan, reader: R) -> Result<Dataset, DataError> {
                         Some(map) => match map.get(label) {
                             Some(i) => *i,
                             None => {
+                                let label = String::from_utf8_lossy(label).into_owned();
+                                let levels = model.levels.as_deref().unwrap_or_default();
+                                let near = did_you_mean(&label, levels.iter().map(String::as_str))
+                                    .and_then(|l| {
+                                        levels
+                                            .iter()
+                                            .position(|x| x == l)
+                                            .map(|i| (i, l.to_string()))
+                                    });
                                 return Err(DataError::UnlistedLevel {
                                     row,
                                     line,
-                                    label: String::from_utf8_lossy(label).into_owned(),
+                                    label,
+                                    column: model.group.clone(),
+                                    near,
                                 });
                             }
                         },
@@ -247,15 +258,10 @@ pub fn load<R: Read>(plan: &Plan, reader: R) -> Result<Dataset, DataError> {
     domain_x.check(&model.covariate, model.covariate_transform)?;
     if let Some(levels) = &model.levels {
         if let Some(i) = seen_level.iter().position(|seen| !seen) {
-            let present: Vec<&str> = index
-                .keys()
-                .filter_map(|k| std::str::from_utf8(k).ok())
-                .collect();
             return Err(DataError::AbsentLevel {
                 level: levels[i].clone(),
                 index: i,
                 column: model.group.clone(),
-                suggestion: did_you_mean(&levels[i], present).map(str::to_string),
             });
         }
     } else {

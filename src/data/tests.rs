@@ -42,24 +42,50 @@ fn groups_follow_levels_or_sort_as_text() {
 
 #[test]
 fn levels_are_checked_against_the_data() {
-    let e = load_str(&plan_with("levels = [\"a\", \"bb\"]", ""), "g,x,y\na,1,1\nb,1,1\n").unwrap_err();
+    let e = load_str(
+        &plan_with("levels = [\"a\", \"bb\"]", ""),
+        "g,x,y\na,1,1\nb,1,1\n",
+    )
+    .unwrap_err();
     assert_eq!(
         e,
         DataError::UnlistedLevel {
             row: 2,
             line: 3,
-            label: "b".into()
+            label: "b".into(),
+            column: "g".into(),
+            near: Some((1, "bb".into())),
         }
     );
-    let e = load_str(&plan_with("levels = [\"a\", \"bee\"]", ""), "g,x,y\na,1,1\nbe,1,1\n");
-    assert!(matches!(e, Err(DataError::UnlistedLevel { .. })));
-    let e = load_str(&plan_with("levels = [\"a\", \"bee\"]", ""), "g,x,y\na,1,1\n").unwrap_err();
-    assert!(e.to_string().contains("level `bee` listed in model.levels does not occur"), "{e}");
+    let e = load_str(
+        &plan_with("levels = [\"a\", \"bee\"]", ""),
+        "g,x,y\na,1,1\nbee \n".replace("bee ", "Bee,1,1").as_str(),
+    );
+    match e {
+        Err(DataError::UnlistedLevel { near, .. }) => {
+            assert_eq!(near, Some((1, "bee".to_string())))
+        }
+        other => panic!("{other:?}"),
+    }
+    let e = load_str(
+        &plan_with("levels = [\"a\", \"bee\"]", ""),
+        "g,x,y\na,1,1\n",
+    )
+    .unwrap_err();
+    assert!(
+        e.to_string()
+            .contains("level `bee` listed in model.levels does not occur"),
+        "{e}"
+    );
 }
 
 #[test]
 fn cells_are_trimmed_and_bom_is_ignored() {
-    let d = load_str(&plan_with("", ""), "\u{feff}g, x ,y\n a , 1.5 , 2 \na,2,3\n").unwrap();
+    let d = load_str(
+        &plan_with("", ""),
+        "\u{feff}g, x ,y\n a , 1.5 , 2 \na,2,3\n",
+    )
+    .unwrap();
     assert_eq!(d.columns, ["g", "x", "y"]);
     assert_eq!(d.groups[0].level, "a");
     assert_eq!(d.groups[0].x.to_vec(), vec![1.5, 2.0]);
@@ -73,19 +99,26 @@ fn non_numbers_name_row_and_column() {
         "data row 2 (file line 3), column `x` (column 2) holds `abc`, which is not a number"
     );
     let e = load_str(&plan_with("", ""), "g,x,y\na,1,inf\n").unwrap_err();
-    assert!(e.to_string().contains("holds `inf`, which is not a finite number"), "{e}");
+    assert!(
+        e.to_string()
+            .contains("holds `inf`, which is not a finite number"),
+        "{e}"
+    );
 }
 
 #[test]
 fn transforms_apply_and_report_their_domain() {
-    let p = plan_with("[model.transform]\nresponse = \"log\"\ncovariate = \"sqrt\"", "");
+    let p = plan_with(
+        "[model.transform]\nresponse = \"log\"\ncovariate = \"sqrt\"",
+        "",
+    );
     let d = load_str(&p, "g,x,y\na,4,1\na,9,2.718281828459045\n").unwrap();
     assert_eq!(d.groups[0].x.to_vec(), vec![2.0, 3.0]);
     assert!((d.groups[0].y.get(1).unwrap() - 1.0).abs() < 1e-15);
     let e = load_str(&p, "g,x,y\na,4,1\na,4,0\na,4,-2\n").unwrap_err();
     assert_eq!(
         e.to_string(),
-        "log of `y` needs positive values, but 2 used rows have other values; first: row 2 (0), row 3 (-2)"
+        "log of `y` needs positive values, but 2 used rows have other values; first: data row 2 (0), data row 3 (-2)"
     );
 }
 
@@ -96,10 +129,19 @@ fn header_problems() {
     assert_eq!(load_str(&p, "g,x,y\n"), Err(DataError::NoRows));
     assert!(matches!(
         load_str(&p, "g,x,x,y\n"),
-        Err(DataError::DuplicateColumn { first: 2, second: 3, .. })
+        Err(DataError::DuplicateColumn {
+            first: 2,
+            second: 3,
+            ..
+        })
     ));
     match load_str(&p, "grp,x,y\na,1,1\n") {
-        Err(DataError::MissingColumn { column, key, suggestion, .. }) => {
+        Err(DataError::MissingColumn {
+            column,
+            key,
+            suggestion,
+            ..
+        }) => {
             assert_eq!(column, "g");
             assert_eq!(key, PlanKey::Group);
             assert_eq!(suggestion, None);
@@ -107,7 +149,9 @@ fn header_problems() {
         other => panic!("{other:?}"),
     }
     match load_str(&plan_with("", "").clone(), "g,xx,y\na,1,1\n") {
-        Err(DataError::MissingColumn { suggestion, .. }) => assert_eq!(suggestion.as_deref(), Some("xx")),
+        Err(DataError::MissingColumn { suggestion, .. }) => {
+            assert_eq!(suggestion.as_deref(), Some("xx"))
+        }
         other => panic!("{other:?}"),
     }
 }
@@ -128,6 +172,10 @@ fn ragged_rows_are_refused_with_their_line() {
 
 #[test]
 fn quoted_fields_keep_commas() {
-    let d = load_str(&plan_with("", ""), "g,x,y\n\"a, left\",1,1\n\"a, left\",2,2\n").unwrap();
+    let d = load_str(
+        &plan_with("", ""),
+        "g,x,y\n\"a, left\",1,1\n\"a, left\",2,2\n",
+    )
+    .unwrap();
     assert_eq!(d.groups[0].level, "a, left");
 }

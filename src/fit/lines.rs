@@ -19,7 +19,12 @@ use super::moments::Moments;
 /// set loses five digits of its 26.6 residual sum that way), so every model's RSS is
 /// recomputed from the residuals once the slope is known: one more pass over the
 /// columns in memory, never over the file.
-pub fn rss_about(points: impl IntoIterator<Item = (f64, f64)>, mean_x: f64, mean_y: f64, slope: f64) -> f64 {
+pub fn rss_about(
+    points: impl IntoIterator<Item = (f64, f64)>,
+    mean_x: f64,
+    mean_y: f64,
+    slope: f64,
+) -> f64 {
     points
         .into_iter()
         .map(|(x, y)| {

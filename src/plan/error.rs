@@ -85,8 +85,15 @@ impl PlanError {
             help.push(format!(
                 "add `{key} = ...` to this table; see the README's plan tour for what it takes"
             ));
-        } else if raw.starts_with("invalid type") {
-            message = format!("wrong type of value: {raw}");
+        } else if let Some(rest) = raw.strip_prefix("invalid type: ") {
+            let (found, expected) = rest.split_once(", expected ").unwrap_or((rest, ""));
+            let key = key_at(source, span.start);
+            message = format!(
+                "{} must be {}, found {}",
+                key.as_deref().unwrap_or("this value"),
+                plain_expected(expected),
+                plain_found(found)
+            );
             help.push("text goes in quotes (\"...\"), numbers without, lists in [ ]".into());
         } else {
             message = format!("the plan is not valid TOML: {raw}");
@@ -100,6 +107,70 @@ impl PlanError {
         let mut d = Diagnostic::new(self.message.clone()).at(self.snippet.clone());
         d.help = self.help.clone();
         d
+    }
+}
+
+/// The dotted key whose value starts at `offset`: the key before `=` on that line,
+/// under the nearest `[table]` header above it.
+fn key_at(source: &str, offset: usize) -> Option<String> {
+    let offset = offset.min(source.len());
+    let line_start = source[..offset].rfind('\n').map_or(0, |i| i + 1);
+    let line = source[line_start..].lines().next().unwrap_or_default();
+    let key = line.split_once('=')?.0.trim().trim_matches('"');
+    if key.is_empty() || key.starts_with('[') {
+        return None;
+    }
+    let table = source[..line_start]
+        .lines()
+        .rev()
+        .map(str::trim)
+        .find(|l| l.starts_with('['))
+        .map(|l| l.trim_matches(|c| c == '[' || c == ']').trim().to_string());
+    Some(match table {
+        Some(t) if !t.is_empty() => format!("{t}.{key}"),
+        _ => key.to_string(),
+    })
+}
+
+/// serde's name of an expected type, in a plan author's words.
+fn plain_expected(expected: &str) -> String {
+    let e = expected.trim();
+    if e.is_empty() {
+        "another type of value".into()
+    } else if e == "f64" || e == "f32" {
+        "a number".into()
+    } else if ["i64", "u64", "i32", "u32", "usize", "isize"].contains(&e) {
+        "a whole number".into()
+    } else if e.contains("string") || e.contains("str") {
+        "text in quotes".into()
+    } else if e.contains("sequence") {
+        "a list in [ ]".into()
+    } else if e.contains("bool") {
+        "true or false".into()
+    } else if e.contains("struct") || e.contains("map") {
+        "a table".into()
+    } else {
+        e.to_string()
+    }
+}
+
+/// serde's description of the value found, in a plan author's words.
+fn plain_found(found: &str) -> String {
+    let f = found.trim();
+    for (prefix, words) in [
+        ("string ", "the text "),
+        ("integer ", "the number "),
+        ("floating point ", "the number "),
+        ("boolean ", ""),
+    ] {
+        if let Some(rest) = f.strip_prefix(prefix) {
+            return format!("{words}{}", rest.trim_matches('`'));
+        }
+    }
+    match f {
+        "sequence" => "a list".into(),
+        "map" => "a table".into(),
+        other => other.to_string(),
     }
 }
 

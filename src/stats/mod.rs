@@ -2,3 +2,4 @@
 
 pub mod adjust;
 pub mod dist;
+pub mod quantile;

@@ -93,12 +93,12 @@ impl Test {
 
     /// Writes `text` (unindented) as `plan.toml`.
     pub fn plan(self, text: &str) -> Self {
-        self.file("plan.toml", &unindent(text))
+        self.file("plan.toml", unindent(text))
     }
 
     /// Writes `text` (unindented) as `data.csv`.
     pub fn data(self, text: &str) -> Self {
-        self.file("data.csv", &unindent(text))
+        self.file("data.csv", unindent(text))
     }
 
     /// Writes `bytes` exactly as given at `path` (relative to the test folder).

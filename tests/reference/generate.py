@@ -161,6 +161,34 @@ def write_grunfeld() -> None:
     write_csv(DATA_DIR / "grunfeld.csv", header, rows)
 
 
+# Invented data for the Johnson-Neyman reference cases (generate_checks.py). These are
+# NOT measurements: a seeded numpy generator draws them for two made-up groups "north"
+# and "south", 30 rows each, covariate x uniform on [0, 10], response y a straight
+# line per group plus normal noise (sd 1). Both cells are rounded to 3 decimals and
+# written as text, so the CSV is exactly what every computation reads back.
+# generate_checks.py asserts the property each case exists for.
+JN_CASES = {
+    # Lines nearly parallel and close: no x in the observed range where they differ.
+    "jn_empty": {"seed": 1, "north": (10.0, 0.5), "south": (10.05, 0.5)},
+    # Lines that cross near the low end of the range with clearly different slopes:
+    # significant above one bound inside the range; the other bound lies below it.
+    "jn_one_sided": {"seed": 7, "north": (10.0, 0.5), "south": (9.5, 1.0)},
+}
+
+
+def write_jn_data() -> None:
+    """data/jn_*.csv: invented two-group data (see JN_CASES); columns g, x, y."""
+    for name, case in JN_CASES.items():
+        rng = np.random.default_rng(case["seed"])
+        n = 30
+        x = np.round(rng.uniform(0.0, 10.0, 2 * n), 3)
+        g = ["north"] * n + ["south"] * n
+        mean = np.array([case[gi][0] + case[gi][1] * xi for gi, xi in zip(g, x)])
+        y = np.round(mean + rng.normal(0.0, 1.0, 2 * n), 3)
+        rows = [[gi, f"{xi:.3f}", f"{yi:.3f}"] for gi, xi, yi in zip(g, x, y)]
+        write_csv(DATA_DIR / f"{name}.csv", ["g", "x", "y"], rows)
+
+
 # ---------------------------------------------------------------------------
 # Plans
 # ---------------------------------------------------------------------------
@@ -225,6 +253,20 @@ PLANS: dict[str, dict] = {
         "model": {"response": "invest", "covariate": "value", "group": "firm",
                   "transform": {"response": "log10", "covariate": "log"}},
         "tests": {"alpha": 0.05, "slopes_alpha": 0.01, "comparisons": "holm"},
+    },
+    # Invented two-group data (write_jn_data): Johnson-Neyman regions with no
+    # significant x in the observed range, and with a one-sided region.
+    "jn_empty": {
+        "title": "Reference: invented data, two nearly parallel close lines",
+        "data": {"path": "../data/jn_empty.csv", "missing": ["NA"]},
+        "model": {"response": "y", "covariate": "x", "group": "g"},
+        "tests": {"alpha": 0.05, "slopes_alpha": 0.05, "comparisons": "holm"},
+    },
+    "jn_one_sided": {
+        "title": "Reference: invented data, two lines crossing near the low end",
+        "data": {"path": "../data/jn_one_sided.csv", "missing": ["NA"]},
+        "model": {"response": "y", "covariate": "x", "group": "g"},
+        "tests": {"alpha": 0.05, "slopes_alpha": 0.05, "comparisons": "holm"},
     },
 }
 
@@ -565,6 +607,7 @@ def main() -> None:
     copy_penguins()
     write_iris()
     write_grunfeld()
+    write_jn_data()
 
     for name, plan in PLANS.items():
         path = PLAN_DIR / f"{name}.toml"
