@@ -176,25 +176,110 @@ fn run_plan(plan_path: &Path, out: Option<&Path>) -> Result<PathBuf, Diagnostic>
         d.file = Some(data_file.clone());
         d
     })?;
+    let formats = &plan.report.formats;
+    let wants = |f: Format| formats.contains(&f);
     let mut files = Vec::new();
-    for format in &plan.report.formats {
-        match format {
-            Format::Json => files.push((
-                "results.json".to_string(),
-                report::json(&results)
-                    .map_err(|e| e.diagnostic())?
-                    .into_bytes(),
-            )),
-            Format::Markdown => files.push((
-                "report.md".to_string(),
-                report::markdown(&results)
-                    .map_err(|e| e.diagnostic())?
-                    .into_bytes(),
-            )),
+    let mut figure_refs = Vec::new();
+    if wants(Format::Markdown) || wants(Format::Pdf) {
+        let points = analysis::figure_points(&dataset, &results);
+        for fig in report::figures::render(&results, &points)
+            .map_err(|e| Diagnostic::new(format!("the figures could not be drawn: {e}")))?
+        {
+            figure_refs.push(report::FigureRef {
+                file: fig.file.clone(),
+                title: fig.title.clone(),
+                caption: fig.caption.clone(),
+            });
+            files.push((fig.file, fig.svg.into_bytes()));
         }
     }
-    output::write_run_folder(&target, &files).map_err(|e| e.diagnostic())?;
-    Ok(target)
+    let rendered = |r: Result<String, report::ReportError>| {
+        r.map(String::into_bytes).map_err(|e| e.diagnostic())
+    };
+    if wants(Format::Json) {
+        files.push((
+            "results.json".to_string(),
+            rendered(report::json(&results))?,
+        ));
+    }
+    if wants(Format::Markdown) {
+        files.push((
+            "report.md".to_string(),
+            rendered(report::markdown(&results, &figure_refs))?,
+        ));
+    }
+    if !wants(Format::Pdf) {
+        output::write_run_folder(&target, &files).map_err(|e| e.diagnostic())?;
+        return Ok(target);
+    }
+    files.push((
+        "report.typ".to_string(),
+        report::pdf::TEMPLATE.as_bytes().to_vec(),
+    ));
+    files.push((
+        "report-data.json".to_string(),
+        rendered(report::pdf::data(&results, &figure_refs))?,
+    ));
+    let compiled =
+        output::write_run_folder_with(&target, &files, compile_pdf).map_err(|e| e.diagnostic())?;
+    compiled.map(|()| target)
+}
+
+/// The typst-cli version the PDF template is tested against.
+pub const TYPST_VERSION: &str = "0.15.1";
+
+/// Environment variable naming the typst binary, when it is not `typst` on PATH.
+pub const TYPST_ENV: &str = "SLOPEWISE_TYPST";
+
+/// Font the PDF and the figures use, handed to typst so no system font is needed.
+const FONT: &[u8] = include_bytes!("../assets/fonts/DejaVuSans.ttf");
+
+/// Compiles `report.typ` in the staging folder into `report.pdf` with the external
+/// `typst`: project root fixed to the folder, system fonts ignored, and a fixed
+/// creation date (SOURCE_DATE_EPOCH if set, else 0), so reruns give the same bytes.
+fn compile_pdf(staging: &Path) -> Result<(), Diagnostic> {
+    let typst = std::env::var_os(TYPST_ENV).unwrap_or_else(|| "typst".into());
+    let fonts = staging.join(".fonts");
+    let cleanup = || {
+        let _ = std::fs::remove_dir_all(staging.join(".fonts"));
+        let _ = std::fs::remove_file(staging.join("report.pdf.partial"));
+    };
+    std::fs::create_dir_all(&fonts)
+        .and_then(|()| std::fs::write(fonts.join("DejaVuSans.ttf"), FONT))
+        .map_err(|e| Diagnostic::new(format!("cannot prepare the PDF fonts: {e}")))?;
+    let epoch = std::env::var("SOURCE_DATE_EPOCH")
+        .ok()
+        .filter(|v| v.parse::<u64>().is_ok())
+        .unwrap_or_else(|| "0".into());
+    let output = std::process::Command::new(&typst)
+        .current_dir(staging)
+        .args([
+            "compile",
+            "--root",
+            ".",
+            "--ignore-system-fonts",
+            "--font-path",
+            ".fonts",
+        ])
+        .args(["--creation-timestamp", &epoch, "report.typ", "report.pdf"])
+        .output();
+    cleanup();
+    let shown = Path::new(&typst).display().to_string();
+    match output {
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => Err(Diagnostic::new(format!(
+            "the PDF was not written: the `typst` program was not found ({shown}); report.md and results.json were written"
+        ))
+        .help(format!("install it with `cargo install typst-cli --version {TYPST_VERSION} --locked`"))
+        .help(format!("or set {TYPST_ENV} to the path of a typst binary"))),
+        Err(e) => Err(Diagnostic::new(format!("the PDF was not written: cannot run {shown}: {e}"))),
+        Ok(out) if !out.status.success() => Err(Diagnostic::new(format!(
+            "the PDF was not written: typst failed ({}); the other outputs were written. typst said:\n{}",
+            out.status,
+            String::from_utf8_lossy(&out.stderr).trim_end()
+        ))
+        .help(format!("slopewise is tested with typst {TYPST_VERSION}; check `{shown} --version`"))),
+        Ok(_) => Ok(()),
+    }
 }
 
 /// A data error, pointing into the plan when a plan key is involved.

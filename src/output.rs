@@ -12,10 +12,12 @@ use std::path::{Path, PathBuf};
 use crate::diagnostic::Diagnostic;
 
 /// Names slopewise writes into a run folder; anything else makes a folder foreign.
-pub const KNOWN_ENTRIES: [&str; 6] = [
+pub const KNOWN_ENTRIES: [&str; 8] = [
     "results.json",
     "report.md",
     "report.pdf",
+    "report.typ",
+    "report-data.json",
     "figures",
     "manifest.json",
     "plan.toml",
@@ -50,6 +52,17 @@ fn io_err(path: &Path, what: &str, e: std::io::Error) -> OutputError {
 
 /// Writes `files` (relative path, bytes) as the folder `target`, atomically.
 pub fn write_run_folder(target: &Path, files: &[(String, Vec<u8>)]) -> Result<(), OutputError> {
+    write_run_folder_with(target, files, |_| Ok::<(), std::convert::Infallible>(())).map(|_| ())
+}
+
+/// As [`write_run_folder`], but runs `finish` on the staging folder once the files
+/// are in it (the PDF is compiled there). The folder is moved into place whatever
+/// `finish` returns, so what was written is kept; its error is handed back.
+pub fn write_run_folder_with<E>(
+    target: &Path,
+    files: &[(String, Vec<u8>)],
+    finish: impl FnOnce(&Path) -> Result<(), E>,
+) -> Result<Result<(), E>, OutputError> {
     let name = target
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
@@ -69,12 +82,15 @@ pub fn write_run_folder(target: &Path, files: &[(String, Vec<u8>)]) -> Result<()
         .map_err(|e| io_err(&parent, "cannot create the output's parent folder", e))?;
     let pid = std::process::id();
     let staging = parent.join(format!(".{name}.partial-{pid}"));
-    let result =
-        stage(&staging, files).and_then(|()| swap_in(&staging, target, &parent, &name, pid));
+    let mut finished = None;
+    let result = stage(&staging, files).and_then(|()| {
+        finished = Some(finish(&staging));
+        swap_in(&staging, target, &parent, &name, pid)
+    });
     if result.is_err() {
         let _ = fs::remove_dir_all(&staging);
     }
-    result
+    result.map(|()| finished.unwrap_or(Ok(())))
 }
 
 fn stage(staging: &Path, files: &[(String, Vec<u8>)]) -> Result<(), OutputError> {

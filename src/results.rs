@@ -41,10 +41,40 @@ pub struct Results {
     pub adjusted_means: Vec<AdjustedMean>,
     /// Differences of adjusted means for every pair of levels.
     pub pairwise_adjusted: Vec<MeanPair>,
+    /// Where two groups differ along the covariate, when slopes differ.
+    pub regions: Vec<Region>,
+    /// Group differences at chosen covariate values, when slopes differ.
+    pub differences_at: Vec<DifferenceAt>,
+    /// Partial eta squared of the gate and of the group effect.
+    pub effect_sizes: EffectSizes,
+    /// Assumption checks.
+    pub checks: Checks,
+    /// The run repeated without the rows beyond the influence cut-offs, when asked.
+    pub sensitivity: Option<Sensitivity>,
     /// What the gate decided and which comparison leads the report.
     pub decision: Decision,
     /// Everything a reader should be warned about, in plain words.
     pub warnings: Vec<String>,
+}
+
+/// The data points the figures draw: not part of `results.json`, and thinned so a
+/// figure stays small however many rows there are.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct FigurePoints {
+    /// Per group, in level order.
+    pub groups: Vec<GroupPoints>,
+}
+
+/// One group's drawn points.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GroupPoints {
+    /// Group label.
+    pub level: String,
+    /// Rows the group has (all of them enter lines and bands).
+    pub n: u64,
+    /// Drawn rows as [x, y, fitted, residual] under the model the decision selected,
+    /// every k-th row in data order so the choice never changes between runs.
+    pub points: Vec<[f64; 4]>,
 }
 
 /// Tool version and the hashes that tie a report to its inputs.
@@ -83,6 +113,12 @@ pub struct ModelEcho {
     pub slopes_alpha: f64,
     /// Multiplicity adjustment.
     pub comparisons: String,
+    /// "quartiles", or "values" when the plan lists tests.compare_at.
+    pub compare_at_rule: String,
+    /// Unit of the response as measured, when the plan gives one.
+    pub response_units: Option<String>,
+    /// Unit of the covariate as measured, when the plan gives one.
+    pub covariate_units: Option<String>,
 }
 
 /// Rows read, used and dropped.
@@ -295,6 +331,223 @@ pub struct MeanPair {
     pub p_value: Option<f64>,
     /// p-value adjusted for the number of pairs.
     pub p_adjusted: Option<f64>,
+    /// Tukey–Kramer p-value: studentized range with k groups at q = |t|·√2.
+    pub p_tukey: Option<f64>,
+}
+
+/// Johnson–Neyman region of significance for one pair of groups.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Region {
+    /// First level.
+    pub a: String,
+    /// Second level.
+    pub b: String,
+    /// "johnson-neyman" or "johnson-neyman-simultaneous".
+    pub method: String,
+    /// Critical value the |t| of the difference is compared with.
+    pub critical_t: f64,
+    /// Every covariate value where significance changes (sorted; may lie outside the data).
+    pub bounds: Vec<f64>,
+    /// Covariate intervals, within the observed range, where a and b differ.
+    pub significant: Vec<[f64; 2]>,
+    /// The observed covariate range the intervals are clipped to.
+    pub observed_range: [f64; 2],
+}
+
+/// The difference of two groups' lines at one covariate value (separate slopes).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct DifferenceAt {
+    /// First level.
+    pub a: String,
+    /// Second level.
+    pub b: String,
+    /// Covariate value.
+    pub at: f64,
+    /// Line of a minus line of b at `at`.
+    pub difference: f64,
+    /// Standard error (pooled residual variance of the separate-slopes model).
+    pub se: Option<f64>,
+    /// Interval at 1 − alpha.
+    pub ci: Option<[f64; 2]>,
+    /// t statistic.
+    pub t: Option<f64>,
+    /// n − 2k.
+    pub df: f64,
+    /// Two-sided p-value.
+    pub p_value: Option<f64>,
+}
+
+/// Partial eta squared, SS_effect / (SS_effect + SS_residual).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct EffectSizes {
+    /// Of the slope differences, against the separate-slopes residual.
+    pub equal_slopes_partial_eta2: Option<f64>,
+    /// Of the group effect, against the common-slope residual.
+    pub group_effect_partial_eta2: Option<f64>,
+}
+
+/// The assumption checks.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Checks {
+    /// Normality of the separate-slopes residuals.
+    pub normality: Normality,
+    /// Equal spread of the separate-slopes residuals across groups.
+    pub equal_variance: EqualVariance,
+    /// Rows that drive the selected model's fit.
+    pub influence: Influence,
+    /// The covariate across groups.
+    pub covariate_balance: CovariateBalance,
+}
+
+/// Shapiro–Wilk on residuals.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Normality {
+    /// "shapiro-wilk".
+    pub method: String,
+    /// W.
+    pub statistic: Option<f64>,
+    /// p-value.
+    pub p_value: Option<f64>,
+    /// Residuals tested (after any subsample).
+    pub n: u64,
+    /// Residuals available.
+    pub residuals: u64,
+    /// True when a seeded subsample was tested because n exceeds the method's range.
+    pub subsampled: bool,
+    /// Per group, in level order.
+    pub groups: Vec<GroupNormality>,
+    /// Normal quantile pairs [theoretical, standardized residual], at most a few
+    /// hundred evenly spaced in rank, for the quantile plot.
+    pub qq: Vec<[f64; 2]>,
+}
+
+/// Shapiro–Wilk within one group.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct GroupNormality {
+    /// Level.
+    pub level: String,
+    /// W.
+    pub statistic: Option<f64>,
+    /// p-value.
+    pub p_value: Option<f64>,
+    /// Residuals tested.
+    pub n: u64,
+    /// True when subsampled.
+    pub subsampled: bool,
+}
+
+/// Brown–Forsythe test of equal spread.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct EqualVariance {
+    /// "brown-forsythe".
+    pub method: String,
+    /// F statistic.
+    pub statistic: Option<f64>,
+    /// k − 1.
+    pub df1: f64,
+    /// n − k.
+    pub df2: f64,
+    /// p-value.
+    pub p_value: Option<f64>,
+}
+
+/// Influence measures of the selected model.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Influence {
+    /// "common-slope" or "separate-slopes".
+    pub model: String,
+    /// Largest Cook's distance.
+    pub max_cooks_distance: Option<f64>,
+    /// Largest leverage.
+    pub max_leverage: Option<f64>,
+    /// The cut-offs rows are compared with.
+    pub cutoffs: InfluenceCutoffs,
+    /// Rows beyond any cut-off.
+    pub flagged_total: u64,
+    /// The flagged rows with the largest Cook's distances (at most 50).
+    pub flagged: Vec<FlaggedRow>,
+}
+
+impl Influence {
+    /// An empty summary, filled in once the model is selected.
+    pub fn placeholder() -> Influence {
+        Influence {
+            model: String::new(),
+            max_cooks_distance: None,
+            max_leverage: None,
+            cutoffs: InfluenceCutoffs {
+                leverage: 0.0,
+                cooks_distance: 0.0,
+                studentized_residual: 0.0,
+            },
+            flagged_total: 0,
+            flagged: Vec::new(),
+        }
+    }
+}
+
+/// Cut-offs for flagging rows (common practice).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct InfluenceCutoffs {
+    /// 2p/n.
+    pub leverage: f64,
+    /// 4/n.
+    pub cooks_distance: f64,
+    /// |externally studentized residual| above this.
+    pub studentized_residual: f64,
+}
+
+/// A row beyond a cut-off.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct FlaggedRow {
+    /// 1-based data row (header excluded).
+    pub row: u64,
+    /// Its group.
+    pub level: String,
+    /// Cook's distance.
+    pub cooks_distance: Option<f64>,
+    /// Leverage.
+    pub leverage: f64,
+    /// Externally studentized residual.
+    pub studentized_residual: Option<f64>,
+}
+
+/// The covariate across groups.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct CovariateBalance {
+    /// One-way ANOVA F of the covariate across groups.
+    pub f: Option<f64>,
+    /// k − 1.
+    pub df1: f64,
+    /// n − k.
+    pub df2: f64,
+    /// p-value.
+    pub p_value: Option<f64>,
+    /// The covariate range every group covers, or null if none.
+    pub overlap: Option<[f64; 2]>,
+}
+
+/// The key results again, without the flagged rows.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Sensitivity {
+    /// Rows left out.
+    pub rows_removed: u64,
+    /// Rows used.
+    pub rows_used: u64,
+    /// The gate without them.
+    pub equal_slopes: EqualSlopes,
+    /// Each group's line without them.
+    pub groups: Vec<GroupLineResult>,
+    /// The common slope without them.
+    pub common_slope: CommonSlope,
+    /// The group effect without them.
+    pub group_effect: GroupEffect,
+    /// Adjusted means without them.
+    pub adjusted_means: Vec<AdjustedMean>,
+    /// The decision without them.
+    pub decision: Decision,
+    /// True when the decision differs from the main run's.
+    pub decision_changed: bool,
 }
 
 /// The gate's outcome and what the report leads with.

@@ -94,8 +94,14 @@ fn shuffling_rows_changes_nothing() {
         .zip(right)
         .flat_map(|(a, b)| [a.clone(), b.clone()])
         .collect();
-    let a = serde_json::to_value(run(&original)).unwrap();
-    let b = serde_json::to_value(run(&interleaved)).unwrap();
+    let mut a = serde_json::to_value(run(&original)).unwrap();
+    let mut b = serde_json::to_value(run(&interleaved)).unwrap();
+    // Data row numbers follow the file order by definition; everything else must not.
+    for v in [&mut a, &mut b] {
+        for f in v["checks"]["influence"]["flagged"].as_array_mut().unwrap() {
+            f["row"] = Value::Null;
+        }
+    }
     // Summation order changes the last bits only.
     assert_close(&a, &b, "results", 1e-10);
 }

@@ -15,6 +15,13 @@ use crate::fit::{CommonSlopeFit, Moments, OneLineFit};
 use crate::plan::Comparisons;
 use crate::results::{AdjustedMean, CommonSlope, GroupEffect, MeanPair};
 use crate::stats::dist::{f_sf, t_two_sided};
+use crate::stats::studentized_range;
+
+/// Tukey–Kramer p-value of a pairwise t (Tukey 1953; Kramer 1956): the upper tail of
+/// the studentized range for `k` groups and `df` at q = |t|·√2.
+pub(super) fn tukey_kramer(t: f64, k: usize, df: f64) -> f64 {
+    studentized_range::sf(t.abs() * std::f64::consts::SQRT_2, k, df)
+}
 
 /// The common slope with its interval.
 pub(super) fn common_slope(fit: &CommonSlopeFit, alpha: f64) -> CommonSlope {
@@ -108,9 +115,16 @@ pub(super) fn pairwise_adjusted(
                 df: fit.df,
                 p_value: t.map(|t| t_two_sided(t, fit.df)),
                 p_adjusted: None,
+                p_tukey: t.map(|t| tukey_kramer(t, moments.len(), fit.df)),
             });
         }
     }
-    fill_adjusted(&mut pairs, |p| p.p_value, |p, v| p.p_adjusted = v, method);
+    if method == Comparisons::TukeyKramer {
+        for p in &mut pairs {
+            p.p_adjusted = p.p_tukey;
+        }
+    } else {
+        fill_adjusted(&mut pairs, |p| p.p_value, |p, v| p.p_adjusted = v, method);
+    }
     pairs
 }

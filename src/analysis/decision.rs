@@ -63,6 +63,7 @@ pub(super) fn conclude(plan: &Plan, mut r: Results, mut warnings: Vec<String>) -
             sig(r.adjust_at, 4)
         ));
     }
+    check_warnings(plan, &r, homogeneous, &covariate, &mut warnings);
     let levels: Vec<&str> = r.groups.iter().map(|g| g.level.as_str()).collect();
     if let Some(w) = spread_from_results(&r, &levels) {
         warnings.push(w);
@@ -94,6 +95,63 @@ pub(super) fn conclude(plan: &Plan, mut r: Results, mut warnings: Vec<String>) -
     };
     r.warnings = warnings;
     r
+}
+
+/// What the assumption checks mean for the comparison the decision chose.
+fn check_warnings(
+    plan: &Plan,
+    r: &Results,
+    homogeneous: bool,
+    covariate: &str,
+    warnings: &mut Vec<String>,
+) {
+    let alpha = plan.tests.alpha;
+    let c = &r.checks;
+    if let Some(p) = c.normality.p_value.filter(|p| *p < alpha) {
+        warnings.push(format!(
+            "The residuals depart from a normal distribution (Shapiro–Wilk {}). With many rows per group the F and t tests tolerate this; with few, treat p-values near the level with caution and look at the residuals.",
+            p_equation(p)
+        ));
+    }
+    if let Some(p) = c.equal_variance.p_value.filter(|p| *p < alpha) {
+        warnings.push(if homogeneous {
+            format!(
+                "Slopes agree, but the residual spread differs between groups (Brown–Forsythe {}). The common-slope comparison pools one residual variance, so its standard errors are too small for the noisier groups and too large for the quieter ones; treat borderline adjusted-mean differences with caution.",
+                p_equation(p)
+            )
+        } else {
+            format!(
+                "The residual spread differs between groups (Brown–Forsythe {}). Prefer the unpooled (Welch) slope comparisons; the regions of difference use the pooled variance and are approximate.",
+                p_equation(p)
+            )
+        });
+    }
+    if let Some(p) = c.covariate_balance.p_value.filter(|p| *p < alpha) {
+        if homogeneous {
+            warnings.push(format!(
+                "The groups differ in their {covariate} values (one-way F test, {}). Adjusted means then lean on the common slope to bridge the gap between groups; check that the lines are straight across the whole range.",
+                p_equation(p)
+            ));
+        }
+    }
+    if let Some(overlap) = c.covariate_balance.overlap {
+        if r.adjust_at < overlap[0] || r.adjust_at > overlap[1] {
+            warnings.push(format!(
+                "The adjustment point {covariate} = {} lies outside the range every group covers ({} to {}).",
+                sig(r.adjust_at, 4),
+                sig(overlap[0], 4),
+                sig(overlap[1], 4)
+            ));
+        }
+    }
+    let flagged = c.influence.flagged_total;
+    if flagged > 0 && !plan.checks.sensitivity {
+        warnings.push(format!(
+            "{flagged} row{} lie{} beyond the influence cut-offs (listed under influential rows). Set `sensitivity = true` under [checks] to see the results without them.",
+            if flagged == 1 { "" } else { "s" },
+            if flagged == 1 { "s" } else { "" }
+        ));
+    }
 }
 
 fn spread_from_results(r: &Results, levels: &[&str]) -> Option<String> {

@@ -5,13 +5,21 @@
 //! 2. The three models are fitted from the groups' moments ([`crate::fit`]).
 //! 3. The equal-slopes gate and the slope comparisons ([`gate`]).
 //! 4. The common-slope comparison: adjusted means and their differences ([`compare`]).
-//! 5. The decision, and warnings when a comparison would mislead ([`decision`]).
+//! 5. Assumption checks ([`checks`], [`influence`]) and, when slopes differ, where
+//!    along the covariate the groups differ ([`regions`]).
+//! 6. The decision, and warnings when a comparison would mislead ([`decision`]).
+//! 7. On request, the whole procedure again without the influential rows
+//!    ([`sensitivity`]).
 
+mod checks;
 mod compare;
 mod decision;
 mod eligible;
 mod error;
 mod gate;
+pub mod influence;
+mod regions;
+mod sensitivity;
 
 pub use error::AnalysisError;
 
@@ -19,37 +27,158 @@ use crate::data::{Dataset, GroupData};
 use crate::fit::lines::rss_about;
 use crate::fit::{CommonSlopeFit, GroupLine, OneLineFit, SeparateFit};
 use crate::plan::{AdjustAt, Plan};
-use crate::results::{DataAccount, ModelEcho, ModelFit, OneLine, Provenance, Results};
+use crate::results::{
+    Checks, DataAccount, EffectSizes, FigurePoints, GroupPoints, Influence, ModelEcho, ModelFit,
+    OneLine, Provenance, Results,
+};
 use crate::stats::dist::t_quantile;
+use crate::stats::quantile::quantile;
 
 /// Runs the whole procedure. `provenance` is recorded as given.
 pub fn run(plan: &Plan, data: &Dataset, provenance: Provenance) -> Result<Results, AnalysisError> {
+    let (mut results, flagged) = procedure(plan, data, provenance)?;
+    if plan.checks.sensitivity {
+        sensitivity::attach(plan, data, &flagged, &mut results);
+    }
+    Ok(results)
+}
+
+/// Influence measures of every used row for the model the decision selects, in
+/// group then data order. Builds a vector of all rows: for tests and small data.
+pub fn row_influence(
+    plan: &Plan,
+    data: &Dataset,
+) -> Result<Vec<influence::RowInfluence>, AnalysisError> {
+    let mut warnings = Vec::new();
+    let eligible = eligible::select(data, &mut warnings)?;
+    let fits = Fits::new(&eligible.groups);
+    let gate = gate::equal_slopes(
+        &fits.separate,
+        &fits.common,
+        plan.tests.slopes_alpha,
+        &mut warnings,
+    );
+    let mut rows = Vec::new();
+    fits.selected(&eligible.groups, gate.homogeneous)
+        .each_row(|r| rows.push(r));
+    Ok(rows)
+}
+
+/// Points drawn per group at most; lines and bands always use every row.
+pub const MAX_DRAWN_PER_GROUP: usize = 1500;
+
+/// The points the figures draw, for the groups in `results` (every k-th row of each
+/// group in data order, at most [`MAX_DRAWN_PER_GROUP`]), with fitted values and
+/// residuals under the model the decision selected.
+pub fn figure_points(data: &Dataset, results: &Results) -> FigurePoints {
+    let common = results.decision.homogeneous;
+    let groups = results
+        .groups
+        .iter()
+        .enumerate()
+        .filter_map(|(i, line)| {
+            let g = data.groups.iter().find(|g| g.level == line.level)?;
+            let n = g.moments.n as usize;
+            let step = n.div_ceil(MAX_DRAWN_PER_GROUP).max(1);
+            let (slope, intercept) = if common {
+                let m = &results.adjusted_means[i];
+                // The parallel line through the group's adjusted mean.
+                let b = results.common_slope.slope;
+                (b, m.mean - b * results.adjust_at)
+            } else {
+                (line.slope, line.intercept)
+            };
+            let points = points(g)
+                .step_by(step)
+                .map(|(x, y)| {
+                    let fitted = intercept + slope * x;
+                    [x, y, fitted, y - fitted]
+                })
+                .collect();
+            Some(GroupPoints {
+                level: line.level.clone(),
+                n: g.moments.n,
+                points,
+            })
+        })
+        .collect();
+    FigurePoints { groups }
+}
+
+/// The three fits, with every RSS recomputed from the residuals.
+struct Fits {
+    separate: SeparateFit,
+    common: CommonSlopeFit,
+    one: OneLineFit,
+}
+
+impl Fits {
+    fn new(groups: &[&GroupData]) -> Fits {
+        let moments: Vec<_> = groups.iter().map(|g| g.moments).collect();
+        let lines: Vec<GroupLine> = groups
+            .iter()
+            .map(|g| {
+                GroupLine::fit(&g.moments)
+                    .expect("eligible groups have covariate spread")
+                    .with_points(points(g))
+            })
+            .collect();
+        let separate = SeparateFit::new(lines);
+        let mut common =
+            CommonSlopeFit::fit(&moments).expect("eligible groups have covariate spread");
+        common.rss = groups
+            .iter()
+            .map(|g| rss_about(points(g), g.moments.mean_x, g.moments.mean_y, common.slope))
+            .sum();
+        let mut one = OneLineFit::fit(&moments).expect("eligible groups have covariate spread");
+        let all = one.line.moments;
+        one.line.rss = groups
+            .iter()
+            .map(|g| rss_about(points(g), all.mean_x, all.mean_y, one.line.slope))
+            .sum();
+        Fits {
+            separate,
+            common,
+            one,
+        }
+    }
+
+    /// The model the decision selects, for influence measures.
+    fn selected<'a>(&self, groups: &'a [&'a GroupData], homogeneous: bool) -> influence::Model<'a> {
+        let k = groups.len() as f64;
+        if homogeneous {
+            influence::Model {
+                groups,
+                slopes: vec![self.common.slope; groups.len()],
+                sxx: vec![self.common.sxx_within; groups.len()],
+                rss: self.common.rss,
+                p: k + 1.0,
+                name: decision::LEAD_COMMON,
+            }
+        } else {
+            influence::Model {
+                groups,
+                slopes: self.separate.lines.iter().map(|l| l.slope).collect(),
+                sxx: self.separate.lines.iter().map(|l| l.moments.sxx).collect(),
+                rss: self.separate.rss,
+                p: 2.0 * k,
+                name: decision::LEAD_SEPARATE,
+            }
+        }
+    }
+}
+
+/// The procedure proper; also returns every row beyond an influence cut-off.
+fn procedure(
+    plan: &Plan,
+    data: &Dataset,
+    provenance: Provenance,
+) -> Result<(Results, Vec<u32>), AnalysisError> {
     let mut warnings = Vec::new();
     let eligible = eligible::select(data, &mut warnings)?;
     let moments: Vec<_> = eligible.groups.iter().map(|g| g.moments).collect();
-    let lines: Vec<GroupLine> = eligible
-        .groups
-        .iter()
-        .map(|g| {
-            GroupLine::fit(&g.moments)
-                .expect("eligible groups have covariate spread")
-                .with_points(points(g))
-        })
-        .collect();
-    let separate = SeparateFit::new(lines);
-    let mut common = CommonSlopeFit::fit(&moments).expect("eligible groups have covariate spread");
-    common.rss = eligible
-        .groups
-        .iter()
-        .map(|g| rss_about(points(g), g.moments.mean_x, g.moments.mean_y, common.slope))
-        .sum();
-    let mut one = OneLineFit::fit(&moments).expect("eligible groups have covariate spread");
-    let all = one.line.moments;
-    one.line.rss = eligible
-        .groups
-        .iter()
-        .map(|g| rss_about(points(g), all.mean_x, all.mean_y, one.line.slope))
-        .sum();
+    let fits = Fits::new(&eligible.groups);
+    let (separate, common, one) = (&fits.separate, &fits.common, &fits.one);
     let levels: Vec<&str> = eligible.groups.iter().map(|g| g.level.as_str()).collect();
     let alpha = plan.tests.alpha;
 
@@ -59,15 +188,58 @@ pub fn run(plan: &Plan, data: &Dataset, provenance: Provenance) -> Result<Result
         AdjustAt::Value(v) => v,
     };
 
-    let groups = gate::group_lines(&levels, &separate, alpha);
-    let equal_slopes =
-        gate::equal_slopes(&separate, &common, plan.tests.slopes_alpha, &mut warnings);
-    let pairwise_slopes = gate::pairwise_slopes(&levels, &separate, plan.tests.comparisons);
-    let common_slope = compare::common_slope(&common, alpha);
-    let group_effect = compare::group_effect(&common, &one, &mut warnings);
-    let adjusted_means = compare::adjusted_means(&levels, &moments, &common, adjust_at, alpha);
+    let groups = gate::group_lines(&levels, separate, alpha);
+    let equal_slopes = gate::equal_slopes(separate, common, plan.tests.slopes_alpha, &mut warnings);
+    let homogeneous = equal_slopes.homogeneous;
+    let pairwise_slopes = gate::pairwise_slopes(&levels, separate, plan.tests.comparisons);
+    let common_slope = compare::common_slope(common, alpha);
+    let group_effect = compare::group_effect(common, one, &mut warnings);
+    let adjusted_means = compare::adjusted_means(&levels, &moments, common, adjust_at, alpha);
     let pairwise_adjusted =
-        compare::pairwise_adjusted(&levels, &moments, &common, alpha, plan.tests.comparisons);
+        compare::pairwise_adjusted(&levels, &moments, common, alpha, plan.tests.comparisons);
+    let effect_sizes = EffectSizes {
+        equal_slopes_partial_eta2: partial_eta2(common.rss - separate.rss, separate.rss),
+        group_effect_partial_eta2: partial_eta2(one.line.rss - common.rss, common.rss),
+    };
+
+    let checks = Checks {
+        normality: checks::normality(&eligible.groups, separate, &mut warnings),
+        equal_variance: checks::equal_variance(&eligible.groups, separate, &mut warnings),
+        covariate_balance: checks::covariate_balance(&moments, &mut warnings),
+        influence: Influence::placeholder(),
+    };
+    let (influence, flagged) = fits.selected(&eligible.groups, homogeneous).summarize();
+    let checks = Checks {
+        influence,
+        ..checks
+    };
+
+    let (regions, differences_at) = if homogeneous {
+        (Vec::new(), Vec::new())
+    } else {
+        let all = one.line.moments;
+        let at = match &plan.tests.compare_at {
+            Some(values) => values.clone(),
+            None => {
+                let x = || eligible.groups.iter().flat_map(|g| g.x.iter());
+                [0.25, 0.5, 0.75]
+                    .iter()
+                    .filter_map(|q| quantile(x, all.n, *q))
+                    .collect()
+            }
+        };
+        (
+            regions::regions(
+                &levels,
+                separate,
+                alpha,
+                plan.tests.regions,
+                all.mean_x,
+                [all.min_x, all.max_x],
+            ),
+            regions::differences_at(&levels, separate, alpha, &at),
+        )
+    };
 
     let results = Results {
         title: plan.title.clone(),
@@ -85,6 +257,12 @@ pub fn run(plan: &Plan, data: &Dataset, provenance: Provenance) -> Result<Result
             alpha,
             slopes_alpha: plan.tests.slopes_alpha,
             comparisons: plan.tests.comparisons.name().into(),
+            compare_at_rule: match plan.tests.compare_at {
+                Some(_) => "values".into(),
+                None => "quartiles".into(),
+            },
+            response_units: plan.model.response_units.clone(),
+            covariate_units: plan.model.covariate_units.clone(),
         },
         data: DataAccount {
             rows_read: data.rows_read,
@@ -104,13 +282,25 @@ pub fn run(plan: &Plan, data: &Dataset, provenance: Provenance) -> Result<Result
         pairwise_slopes,
         common_slope,
         group_effect,
-        one_line: one_line(&one),
+        one_line: one_line(one),
         adjusted_means,
         pairwise_adjusted,
+        regions,
+        differences_at,
+        effect_sizes,
+        checks,
+        sensitivity: None,
         decision: decision::placeholder(),
         warnings: Vec::new(),
     };
-    Ok(decision::conclude(plan, results, warnings))
+    Ok((decision::conclude(plan, results, warnings), flagged))
+}
+
+/// SS_effect / (SS_effect + SS_residual); `None` when both are zero.
+fn partial_eta2(effect: f64, residual: f64) -> Option<f64> {
+    let effect = effect.max(0.0);
+    let total = effect + residual;
+    (total > 0.0).then(|| effect / total)
 }
 
 /// A group's (x, y) pairs in data order.

@@ -95,3 +95,101 @@ fn crossing_groups_warn_that_adjusted_means_are_local() {
     );
     assert!(r.adjusted_means.iter().all(|m| !m.within_range));
 }
+
+/// No NaN and no infinity anywhere in the serialized results.
+fn assert_all_finite(v: &serde_json::Value, path: &str) {
+    match v {
+        serde_json::Value::Number(n) => {
+            assert!(n.as_f64().is_some_and(f64::is_finite), "{path}: {n}")
+        }
+        serde_json::Value::Array(a) => a
+            .iter()
+            .enumerate()
+            .for_each(|(i, x)| assert_all_finite(x, &format!("{path}[{i}]"))),
+        serde_json::Value::Object(o) => o
+            .iter()
+            .for_each(|(k, x)| assert_all_finite(x, &format!("{path}.{k}"))),
+        _ => {}
+    }
+}
+
+#[test]
+fn a_perfect_fit_gives_warnings_and_nulls_not_nan() {
+    // Every row on its group's line: all residuals are zero.
+    let mut s = String::from("g,x,y\n");
+    for i in 0..6 {
+        s.push_str(&format!("a,{i},{}\n", 1.0 + 2.0 * i as f64));
+        s.push_str(&format!("b,{i},{}\n", 3.0 + 2.0 * i as f64));
+    }
+    let r = run_csv("", &s).unwrap();
+    let json = serde_json::to_value(&r).unwrap();
+    assert_all_finite(&json, "results");
+    assert_eq!(json["equal_slopes"]["f"], serde_json::Value::Null);
+    assert_eq!(
+        json["checks"]["normality"]["statistic"],
+        serde_json::Value::Null
+    );
+    assert_eq!(
+        json["checks"]["equal_variance"]["statistic"],
+        serde_json::Value::Null
+    );
+    assert!(
+        r.warnings
+            .iter()
+            .any(|w| w.starts_with("The equal-slopes F test could not be computed"))
+    );
+    assert!(r.warnings.iter().any(|w| {
+        w.starts_with("The Shapiro–Wilk test of the pooled residuals could not be computed")
+    }));
+    assert!(
+        r.warnings
+            .iter()
+            .any(|w| w.starts_with("The Brown–Forsythe test could not be computed"))
+    );
+    // Equal slopes exactly: the gate still decides, on the identical slopes.
+    assert!(r.decision.homogeneous);
+}
+
+#[test]
+fn identical_residual_spreads_give_a_null_spread_test() {
+    // Residuals ±1 around each line in both groups: every |e − median| is 1.
+    let mut s = String::from("g,x,y\n");
+    for i in 0..8 {
+        let e = if i % 2 == 0 { 1.0 } else { -1.0 };
+        s.push_str(&format!("a,{},{}\n", i / 2, 1.0 + 2.0 * (i / 2) as f64 + e));
+        s.push_str(&format!("b,{},{}\n", i / 2, 3.0 + 2.0 * (i / 2) as f64 + e));
+    }
+    let r = run_csv("", &s).unwrap();
+    assert_eq!(r.checks.equal_variance.statistic, None);
+    assert!(
+        r.warnings
+            .iter()
+            .any(|w| w.starts_with("The Brown–Forsythe test could not be computed"))
+    );
+    assert_all_finite(&serde_json::to_value(&r).unwrap(), "results");
+}
+
+#[test]
+fn sensitivity_rerun_leaves_out_the_flagged_rows() {
+    // One wild row in group a.
+    let mut s = parallel("");
+    s.push_str("a,11,60\n");
+    let r = run_csv("", &s).unwrap();
+    assert!(r.checks.influence.flagged_total >= 1);
+    assert!(r.checks.influence.flagged.iter().any(|f| f.row == 25));
+    assert!(r.sensitivity.is_none());
+    let text = "title = \"t\"\n[data]\npath = \"d.csv\"\n[model]\nresponse = \"y\"\ncovariate = \"x\"\ngroup = \"g\"\n[checks]\nsensitivity = true\n";
+    let plan = plan::load("p.toml", text).unwrap();
+    let dataset = data::load(&plan, s.as_bytes()).unwrap();
+    let provenance = r.provenance.clone();
+    let with = run(&plan, &dataset, provenance).unwrap();
+    let sens = with.sensitivity.expect("sensitivity rerun");
+    assert_eq!(sens.rows_removed, with.checks.influence.flagged_total);
+    assert_eq!(sens.rows_used, with.data.rows_used - sens.rows_removed);
+    // Without the wild row group a's slope returns close to 2.
+    assert!(
+        (sens.groups[0].slope - 2.0).abs() < 0.1,
+        "{}",
+        sens.groups[0].slope
+    );
+}

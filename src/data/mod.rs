@@ -93,6 +93,32 @@ pub struct Dataset {
     pub groups: Vec<GroupData>,
 }
 
+impl Dataset {
+    /// The same data without the given data rows (sorted ascending); moments are
+    /// recomputed, drop counts kept as they were.
+    pub fn without_rows(&self, rows: &[u32]) -> Dataset {
+        let groups = self
+            .groups
+            .iter()
+            .map(|g| {
+                let mut out = GroupData::new(g.level.clone());
+                for ((x, y), row) in g.x.iter().zip(g.y.iter()).zip(g.rows.iter()) {
+                    if rows.binary_search(&row).is_err() {
+                        out.push(row, x, y);
+                    }
+                }
+                out
+            })
+            .collect();
+        Dataset {
+            columns: self.columns.clone(),
+            rows_read: self.rows_read,
+            dropped: self.dropped.clone(),
+            groups,
+        }
+    }
+}
+
 const MAX_DOMAIN_ROWS: usize = 5;
 
 /// Where the plan's columns sit in each record.

@@ -10,7 +10,7 @@ mod error;
 mod schema;
 
 pub use error::PlanError;
-pub use schema::{Comparisons, Format, Transform};
+pub use schema::{Comparisons, Format, Regions, Transform};
 
 use std::ops::Range;
 use toml::Spanned;
@@ -26,6 +26,8 @@ pub struct Plan {
     pub model: ModelSpec,
     /// Levels and procedures of the tests.
     pub tests: TestSpec,
+    /// Assumption checks and their options.
+    pub checks: CheckSpec,
     /// What to write and where.
     pub report: ReportSpec,
     /// Spans of the values, for error messages that point into the plan.
@@ -71,6 +73,10 @@ pub struct ModelSpec {
     pub response_transform: Transform,
     /// Transform applied to the covariate before fitting.
     pub covariate_transform: Transform,
+    /// Unit of the response as measured (for axis titles), e.g. "g".
+    pub response_units: Option<String>,
+    /// Unit of the covariate as measured, e.g. "cm".
+    pub covariate_units: Option<String>,
 }
 
 /// Where along the covariate adjusted means are evaluated.
@@ -91,6 +97,18 @@ pub struct TestSpec {
     pub slopes_alpha: f64,
     /// Multiplicity adjustment of pairwise p-values.
     pub comparisons: Comparisons,
+    /// Johnson–Neyman form when slopes differ.
+    pub regions: Regions,
+    /// Covariate values at which group differences are given when slopes differ;
+    /// `None` means the quartiles of the covariate.
+    pub compare_at: Option<Vec<f64>>,
+}
+
+/// The `[checks]` table.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct CheckSpec {
+    /// Rerun without the rows beyond the influence cut-offs, shown side by side.
+    pub sensitivity: bool,
 }
 
 /// The `[report]` table.
@@ -279,6 +297,8 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
             alpha: 0.05,
             slopes_alpha: 0.05,
             comparisons: Comparisons::Holm,
+            regions: Regions::Pointwise,
+            compare_at: None,
         },
         Some(t) => {
             let t = t.get_ref();
@@ -289,6 +309,23 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                     .comparisons
                     .as_ref()
                     .map_or(Comparisons::Holm, |c| *c.get_ref()),
+                regions: t
+                    .regions
+                    .as_ref()
+                    .map_or(Regions::Pointwise, |r| *r.get_ref()),
+                compare_at: match &t.compare_at {
+                    None => None,
+                    Some(list) => {
+                        if list.get_ref().is_empty() {
+                            return Err(err(
+                                list.span(),
+                                "tests.compare_at is empty".into(),
+                                "list covariate values such as [10.0, 20.0], or remove the key to use the quartiles",
+                            ));
+                        }
+                        Some(list.get_ref().iter().map(|v| *v.get_ref()).collect())
+                    }
+                },
             }
         }
     };
@@ -332,8 +369,17 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
         }
     };
 
+    let checks = CheckSpec {
+        sensitivity: raw
+            .checks
+            .as_ref()
+            .and_then(|c| c.sensitivity)
+            .unwrap_or(false),
+    };
+
     Ok(Plan {
         title,
+        checks,
         data: DataSpec {
             path,
             missing,
@@ -348,6 +394,8 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
             adjust_at,
             response_transform,
             covariate_transform,
+            response_units: model.units.as_ref().and_then(|u| u.response.clone()),
+            covariate_units: model.units.as_ref().and_then(|u| u.covariate.clone()),
         },
         tests,
         report,

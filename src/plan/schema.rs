@@ -11,6 +11,7 @@ pub(super) struct RawPlan {
     pub data: Spanned<RawData>,
     pub model: Spanned<RawModel>,
     pub tests: Option<Spanned<RawTests>>,
+    pub checks: Option<RawChecks>,
     pub report: Option<Spanned<RawReport>>,
 }
 
@@ -41,6 +42,14 @@ pub(super) struct RawModel {
     pub levels: Option<Spanned<Vec<Spanned<String>>>>,
     pub adjust_at: Option<Spanned<toml::Value>>,
     pub transform: Option<RawTransform>,
+    pub units: Option<RawUnits>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(super) struct RawUnits {
+    pub response: Option<String>,
+    pub covariate: Option<String>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -56,6 +65,14 @@ pub(super) struct RawTests {
     pub alpha: Option<Spanned<f64>>,
     pub slopes_alpha: Option<Spanned<f64>>,
     pub comparisons: Option<Spanned<Comparisons>>,
+    pub regions: Option<Spanned<Regions>>,
+    pub compare_at: Option<Spanned<Vec<Spanned<f64>>>>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(super) struct RawChecks {
+    pub sensitivity: Option<bool>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -121,7 +138,7 @@ impl Transform {
 
 /// Multiplicity adjustment for the pairwise p-values.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
-#[serde(rename_all = "lowercase")]
+#[serde(rename_all = "kebab-case")]
 pub enum Comparisons {
     /// Unadjusted p-values.
     None,
@@ -129,6 +146,28 @@ pub enum Comparisons {
     Bonferroni,
     /// Holm's step-down procedure.
     Holm,
+    /// Tukey–Kramer: the studentized range over all k groups.
+    TukeyKramer,
+}
+
+/// Which Johnson–Neyman regions to report when slopes differ.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Regions {
+    /// Johnson & Neyman (1936): t at 1 − alpha/2 at each covariate value.
+    Pointwise,
+    /// Potthoff (1964): simultaneous over the whole covariate range.
+    Simultaneous,
+}
+
+impl Regions {
+    /// The method's name in `results.json`.
+    pub fn method(self) -> &'static str {
+        match self {
+            Regions::Pointwise => "johnson-neyman",
+            Regions::Simultaneous => "johnson-neyman-simultaneous",
+        }
+    }
 }
 
 impl Comparisons {
@@ -138,6 +177,7 @@ impl Comparisons {
             Comparisons::None => "none",
             Comparisons::Bonferroni => "bonferroni",
             Comparisons::Holm => "holm",
+            Comparisons::TukeyKramer => "tukey-kramer",
         }
     }
 }
@@ -150,6 +190,8 @@ pub enum Format {
     Markdown,
     /// `results.json`.
     Json,
+    /// `report.pdf`, through the external `typst` program.
+    Pdf,
 }
 
 impl Format {
@@ -158,6 +200,7 @@ impl Format {
         match self {
             Format::Markdown => "markdown",
             Format::Json => "json",
+            Format::Pdf => "pdf",
         }
     }
 }

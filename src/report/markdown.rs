@@ -17,6 +17,10 @@ const METHODS: &str = include_str!("../../templates/methods.md.j2");
 const GATE: &str = include_str!("../../templates/gate.md.j2");
 const SLOPE_PAIRS: &str = include_str!("../../templates/slope-pairs.md.j2");
 const COMMON_SLOPE: &str = include_str!("../../templates/common-slope.md.j2");
+const REGIONS: &str = include_str!("../../templates/regions.md.j2");
+const CHECKS: &str = include_str!("../../templates/checks.md.j2");
+const SUMMARY: &str = include_str!("../../templates/summary.j2");
+const CAUTIONS: &str = include_str!("../../templates/cautions.j2");
 
 /// Escapes text for Markdown: backslash before every character that could start
 /// emphasis, code, a link, HTML, an entity, math or a table cell; line breaks become
@@ -48,10 +52,13 @@ fn safe(s: String) -> Value {
     Value::from_safe_string(s)
 }
 
-fn environment() -> Result<Environment<'static>, Error> {
+/// The template environment. With `markdown`, text values are escaped for
+/// Markdown; without, they are written as they are (for the PDF's data file, where
+/// Typst shows strings literally).
+fn environment(markdown: bool) -> Result<Environment<'static>, Error> {
     let mut env = Environment::new();
     env.set_undefined_behavior(UndefinedBehavior::Strict);
-    env.set_formatter(|out, _state, value| {
+    env.set_formatter(move |out, _state, value| {
         let text = if value.is_safe() {
             value.as_str().unwrap_or_default().to_string()
         } else if value.is_none() || value.is_undefined() {
@@ -60,8 +67,10 @@ fn environment() -> Result<Environment<'static>, Error> {
             value.to_string()
         } else if let Some(x) = number(value) {
             sig(x, 4)
-        } else {
+        } else if markdown {
             escape_markdown(&value.to_string())
+        } else {
+            value.to_string()
         };
         out.write_str(&text)
             .map_err(|_| Error::new(ErrorKind::WriteFailure, "write failed"))
@@ -96,14 +105,52 @@ fn environment() -> Result<Environment<'static>, Error> {
     env.add_template("gate.md.j2", GATE)?;
     env.add_template("slope-pairs.md.j2", SLOPE_PAIRS)?;
     env.add_template("common-slope.md.j2", COMMON_SLOPE)?;
+    env.add_template("regions.md.j2", REGIONS)?;
+    env.add_template("checks.md.j2", CHECKS)?;
+    env.add_template("summary.j2", SUMMARY)?;
+    env.add_template("cautions.j2", CAUTIONS)?;
     Ok(env)
 }
 
+/// A figure as the reports list it.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct FigureRef {
+    /// Path inside the run folder, e.g. `figures/lines.svg`.
+    pub file: String,
+    /// Short title.
+    pub title: String,
+    /// Caption, including how many points are drawn.
+    pub caption: String,
+}
+
 /// Renders `report.md`.
-pub fn markdown(r: &Results) -> Result<String, ReportError> {
+pub fn markdown(r: &Results, figures: &[FigureRef]) -> Result<String, ReportError> {
+    let mut text = render(r, figures, "report.md.j2", true)?;
+    tidy(&mut text);
+    Ok(text)
+}
+
+/// Renders one of the shared prose templates (`summary.j2`, `cautions.j2`,
+/// `methods.md.j2`) as plain text: values unescaped, lines joined into paragraphs.
+pub fn plain(r: &Results, template: &str) -> Result<Vec<String>, ReportError> {
+    let text = render(r, &[], template, false)?;
+    let paragraphs = text
+        .split("\n\n")
+        .map(|p| p.split_whitespace().collect::<Vec<_>>().join(" "))
+        .filter(|p| !p.is_empty())
+        .collect();
+    Ok(paragraphs)
+}
+
+fn render(
+    r: &Results,
+    figures: &[FigureRef],
+    name: &str,
+    markdown: bool,
+) -> Result<String, ReportError> {
     let fail = |e: Error| ReportError::Template(format!("{e:#}"));
-    let env = environment().map_err(fail)?;
-    let template = env.get_template("report.md.j2").map_err(fail)?;
+    let env = environment(markdown).map_err(fail)?;
+    let template = env.get_template(name).map_err(fail)?;
     let y = label(&r.model.response, &r.model.response_transform);
     let x = label(&r.model.covariate, &r.model.covariate_transform);
     let drops: Vec<Value> = r
@@ -118,15 +165,11 @@ pub fn markdown(r: &Results) -> Result<String, ReportError> {
         .pairwise_adjusted
         .iter()
         .max_by(|a, b| a.difference.abs().total_cmp(&b.difference.abs()));
-    let conf = format!("{}%", trimmed(100.0 * (1.0 - r.model.alpha), 4));
-    let adjust_name = match r.model.comparisons.as_str() {
-        "holm" => "Holm",
-        "bonferroni" => "Bonferroni",
-        _ => "none",
-    };
-    let mut text = template
+    template
         .render(context! {
             r => Value::from(Serde(r)),
+            c => Value::from(Serde(&r.checks)),
+            alpha_text => format!("level {}", trimmed(r.model.alpha, 4)),
             y => y,
             x => x,
             g => r.model.group.clone(),
@@ -135,15 +178,30 @@ pub fn markdown(r: &Results) -> Result<String, ReportError> {
             steepest_low => Value::from(Serde(low)),
             steepest_high => Value::from(Serde(high)),
             largest => Value::from(Serde(largest)),
-            conf => conf,
-            adjust_name => adjust_name,
+            conf => confidence(r),
+            adjust_name => adjustment_name(&r.model.comparisons),
+            figures => Value::from(Serde(figures)),
         })
-        .map_err(fail)?;
-    tidy(&mut text);
-    Ok(text)
+        .map_err(fail)
 }
 
-fn label(column: &str, transform: &str) -> String {
+/// "95%" for alpha = 0.05.
+pub fn confidence(r: &Results) -> String {
+    format!("{}%", trimmed(100.0 * (1.0 - r.model.alpha), 4))
+}
+
+/// The adjustment's name as the report writes it.
+pub fn adjustment_name(method: &str) -> &'static str {
+    match method {
+        "holm" => "Holm",
+        "bonferroni" => "Bonferroni",
+        "tukey-kramer" => "Tukey–Kramer",
+        _ => "none",
+    }
+}
+
+/// The axis and table label of a column: `log(height_cm)` for a transformed one.
+pub fn label(column: &str, transform: &str) -> String {
     if transform == "none" {
         column.to_string()
     } else {
@@ -151,7 +209,8 @@ fn label(column: &str, transform: &str) -> String {
     }
 }
 
-fn drop_text(key: &str) -> String {
+/// The plain words for a drop reason key.
+pub fn drop_text(key: &str) -> String {
     match key {
         "filtered_out" => "did not pass the data.keep filters".into(),
         "missing_response" => "response missing".into(),

@@ -5,10 +5,12 @@
 //! so a report never depends on where the tool was installed from.
 
 mod error;
+pub mod figures;
 mod markdown;
+pub mod pdf;
 
 pub use error::ReportError;
-pub use markdown::{escape_markdown, markdown};
+pub use markdown::{FigureRef, escape_markdown, markdown};
 
 use crate::results::Results;
 

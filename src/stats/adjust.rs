@@ -9,7 +9,9 @@ use crate::plan::Comparisons;
 pub fn adjust(p: &[f64], method: Comparisons) -> Vec<f64> {
     let m = p.len() as f64;
     match method {
-        Comparisons::None => p.to_vec(),
+        // Tukey–Kramer does not adjust p-values: it replaces them by studentized range
+        // tails, which the callers compute from t (see `p_tukey` in the results).
+        Comparisons::None | Comparisons::TukeyKramer => p.to_vec(),
         Comparisons::Bonferroni => p.iter().map(|v| (v * m).min(1.0)).collect(),
         Comparisons::Holm => {
             let mut order: Vec<usize> = (0..p.len()).collect();

@@ -1,5 +1,10 @@
-//! Numerical building blocks: distributions and p-value adjustment.
+//! Numerical building blocks: distributions, p-value adjustment, quantiles of
+//! streams, the assumption-check tests and a seeded generator.
 
 pub mod adjust;
+pub mod brown_forsythe;
 pub mod dist;
 pub mod quantile;
+pub mod rng;
+pub mod shapiro_wilk;
+pub mod studentized_range;

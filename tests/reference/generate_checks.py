@@ -28,6 +28,7 @@ from pathlib import Path
 
 HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE))
+sys.dont_write_bytecode = True  # importing generate.py must leave no __pycache__ here
 
 import generate as gen  # noqa: E402  (helpers and plan semantics shared with generate.py)
 
@@ -62,7 +63,8 @@ def numbered_rows(plan: dict, plan_path: Path):
     with (plan_path.parent / data["path"]).open(newline="") as fh:
         for number, row in enumerate(csv.DictReader(fh), start=1):
             keep = all(
-                row[r["column"]] == r["equals"] if "equals" in r else row[r["column"]] in r["one_of"]
+                row[r["column"]] == r["equals"] if "equals" in r
+                else row[r["column"]] in r["one_of"]
                 for r in data.get("keep", [])
             )
             if not keep or any(row[c] in missing for c in (y_name, x_name, g_name)):
@@ -137,13 +139,14 @@ def tukey(pairwise_adjusted: list[dict], k: int) -> list[dict]:
     the common-slope model's df.
 
     p_tukey is scipy.stats.studentized_range.sf where it agrees with the quadrature
-    above to 1e-9 relative. scipy's value is accurate to about 1e-13 absolute only, so
-    for small p (below about 1e-5) it is off by more than that, and for p below about
-    1e-13 it is wrong outright (it stays near 1e-13, or gives 0): there p_tukey is the
-    quadrature's value and p_tukey_source says so. The quadrature is checked here
-    against the exact two-group case, 2 * t.sf(|t|, df), and every value against the
-    bounds p_t <= p_tukey <= (k choose 2) p_t (one pair's event is inside the range's;
-    the range's is inside the union of all pairs': Bonferroni).
+    above to 1e-9 relative. scipy's value is accurate to about 1e-13 absolute only
+    (measured here against the exact two-group case: relative error 5e-11 at p = 4e-4,
+    2e-7 at p = 9e-8), so for p below about 1e-4 it can be off by more than that, and
+    for p below about 1e-13 it is wrong outright (it stays near 1e-13, or gives 0):
+    there p_tukey is the quadrature's value and p_tukey_source says so. The quadrature
+    is checked here against the exact two-group case, 2 * t.sf(|t|, df), and every value
+    against the bounds p_t <= p_tukey <= (k choose 2) p_t (one pair's event is inside
+    the range's; the range's is inside the union of all pairs': Bonferroni).
     """
     out = []
     for p in pairwise_adjusted:
@@ -235,6 +238,24 @@ def region(sep, k: int, a: int, b: int, crit: float, x_range: tuple[float, float
         pieces = [(-math.inf, math.inf)] if qa > 0 else []
     clipped = [[max(p, lo_x), min(q, hi_x)] for p, q in pieces if max(p, lo_x) < min(q, hi_x)]
     assert clipped == significant, (clipped, significant)
+    # A third check: |t| against crit on a fine grid over the observed range, with the
+    # coefficients and covariance from numpy's least squares instead of statsmodels
+    # (points within 1e-6 of a bound are left out, where rounding may tip either way).
+    X = np.asarray(sep.model.exog)
+    y = np.asarray(sep.model.endog)
+    b_ls = np.linalg.lstsq(X, y, rcond=None)[0]
+    res = y - X @ b_ls
+    v_ls = np.linalg.inv(X.T @ X) * float(res @ res) / float(sep.df_resid)
+    grid = np.linspace(lo_x, hi_x, 20001)
+    cs = np.array([contrast(k, a, b, v) for v in grid])
+    t_grid = (cs @ b_ls) / np.sqrt(np.einsum("ij,jk,ik->i", cs, v_ls, cs))
+    inside = np.zeros(grid.shape, dtype=bool)
+    for lo, hi in significant:
+        inside |= (grid >= lo) & (grid <= hi)
+    near = np.zeros(grid.shape, dtype=bool)
+    for r in roots:
+        near |= np.abs(grid - r) < 1e-6
+    assert np.all(((np.abs(t_grid) > crit) == inside) | near), "grid disagrees"
     return {"bounds": roots, "significant": significant, "leading_coefficient_positive": qa > 0}
 
 
@@ -262,9 +283,10 @@ def checks_for(name: str, plan: dict, plan_path: Path, source: str) -> dict:
     one = gen.fit(y, np.column_stack([np.ones(n), x]))
     # Same fits as expected/NAME.json (generate.py).
     es, ge = expected["equal_slopes"], expected["group_effect"]
-    assert gen.close(sep.ssr, es["rss_separate"], 1e-12) and gen.close(com.ssr, es["rss_common"], 1e-12)
+    assert gen.close(sep.ssr, es["rss_separate"], 1e-12)
+    assert gen.close(com.ssr, es["rss_common"], 1e-12)
     assert gen.close(one.ssr, ge["rss_one_line"], 1e-12)
-    f_s, p_s, _ = sep.compare_f_test(com)
+    _, p_s, _ = sep.compare_f_test(com)
     assert gen.close(float(p_s), es["p_value"], 1e-12)
 
     pairs = [(a, b) for a in range(k) for b in range(a + 1, k)]
@@ -295,8 +317,23 @@ def checks_for(name: str, plan: dict, plan_path: Path, source: str) -> dict:
     leverage = np.asarray(infl.hat_matrix_diag)
     stud = np.asarray(infl.resid_studentized_external)
     cooks = np.asarray(infl.cooks_distance[0])
-    assert gen.close(float(leverage.sum()), float(chosen.df_model + chosen.k_constant), 1e-9) \
-        or gen.close(float(leverage.sum()), float(D.shape[1] + (1 if homogeneous else k)), 1e-9)
+    # The hat matrix's trace is the number of coefficients (k + 1, or 2k).
+    assert gen.close(float(leverage.sum()), float(k + 1 if homogeneous else 2 * k), 1e-9)
+    # Second route, from the textbook definitions (Cook 1977; Belsley, Kuh & Welsch
+    # 1980): h = diag(X (X'X)^-1 X'), D_i = e_i^2 h_i / (p s^2 (1 - h_i)^2), and the
+    # externally studentized residual with the leave-one-out variance
+    # s_(i)^2 = ((n - p) s^2 - e_i^2 / (1 - h_i)) / (n - p - 1). Rows with a residual
+    # near zero have relative errors far above the rest, so the check is against the
+    # largest value (README.md).
+    X = np.asarray(chosen.model.exog)
+    n_p = X.shape[1]
+    h2 = np.einsum("ij,ji->i", X, np.linalg.solve(X.T @ X, X.T))
+    e = np.asarray(chosen.resid)
+    s2 = float(e @ e) / (n - n_p)
+    cooks2 = e**2 * h2 / (n_p * s2 * (1 - h2) ** 2)
+    stud2 = e / np.sqrt(((n - n_p) * s2 - e**2 / (1 - h2)) / (n - n_p - 1) * (1 - h2))
+    for got, want in ((leverage, h2), (cooks, cooks2), (stud, stud2)):
+        assert np.max(np.abs(got - want)) <= 1e-10 * np.max(np.abs(want))
     influence = {
         "model": "common-slope" if homogeneous else "separate-slopes",
         "row": [int(r) for r in rows],
