@@ -32,7 +32,7 @@ use crate::results::{
     OneLine, Provenance, Results,
 };
 use crate::stats::dist::t_quantile;
-use crate::stats::quantile::quantile;
+use crate::stats::quantile::quantiles;
 
 /// Runs the whole procedure. `provenance` is recorded as given.
 pub fn run(plan: &Plan, data: &Dataset, provenance: Provenance) -> Result<Results, AnalysisError> {
@@ -222,10 +222,7 @@ fn procedure(
             Some(values) => values.clone(),
             None => {
                 let x = || eligible.groups.iter().flat_map(|g| g.x.iter());
-                [0.25, 0.5, 0.75]
-                    .iter()
-                    .filter_map(|q| quantile(x, all.n, *q))
-                    .collect()
+                quantiles(x, all.n, Some((all.min_x, all.max_x)), &[0.25, 0.5, 0.75])
             }
         };
         (

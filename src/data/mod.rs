@@ -188,6 +188,9 @@ pub fn load<R: Read>(plan: &Plan, reader: R) -> Result<Dataset, DataError> {
                 .map(|s| s.trim().as_bytes())
                 .map_err(|_| DataError::NotUtf8 { at: cell_at(col) })
         };
+        // Numeric cells skip the UTF-8 check on the fast path: a number is ASCII,
+        // and a cell that fails to parse is checked before it is quoted.
+        let raw_cell = |col: usize| trim_ascii(&record[col]);
 
         let mut passes = true;
         for (col, accepted) in &layout.keep {
@@ -209,8 +212,12 @@ pub fn load<R: Read>(plan: &Plan, reader: R) -> Result<Dataset, DataError> {
             slot = Some(match &last {
                 Some((l, i)) if l.as_slice() == label => *i,
                 _ => {
-                    let i = match &listed {
-                        Some(map) => match map.get(label) {
+                    let known = (groups.len() <= LINEAR_LOOKUP)
+                        .then(|| groups.iter().position(|g| g.level.as_bytes() == label))
+                        .flatten();
+                    let i = match (&listed, known) {
+                        (_, Some(i)) => i,
+                        (Some(map), None) => match map.get(label) {
                             Some(i) => *i,
                             None => {
                                 let label = String::from_utf8_lossy(label).into_owned();
@@ -231,7 +238,7 @@ pub fn load<R: Read>(plan: &Plan, reader: R) -> Result<Dataset, DataError> {
                                 });
                             }
                         },
-                        None => match index.get(label) {
+                        (None, None) => match index.get(label) {
                             Some(i) => *i,
                             None => {
                                 let i = groups.len();
@@ -250,8 +257,8 @@ pub fn load<R: Read>(plan: &Plan, reader: R) -> Result<Dataset, DataError> {
             seen_level[slot.unwrap_or_default()] = true;
         }
 
-        let y_text = cell(layout.response)?;
-        let x_text = cell(layout.covariate)?;
+        let y_text = raw_cell(layout.response);
+        let x_text = raw_cell(layout.covariate);
         let reason = if is_missing(y_text) {
             Some(DropReason::MissingResponse)
         } else if is_missing(x_text) {
@@ -370,19 +377,29 @@ fn layout(plan: &Plan, columns: &[String]) -> Result<Layout, DataError> {
     })
 }
 
+/// Groups up to this many are found by comparing labels, faster than hashing.
+const LINEAR_LOOKUP: usize = 16;
+
+fn trim_ascii(bytes: &[u8]) -> &[u8] {
+    bytes.trim_ascii()
+}
+
+/// Parses a numeric cell (Eisel–Lemire via fast-float2; the whole cell must be a
+/// number).
 fn number(text: &[u8], at: impl Fn() -> CellAt) -> Result<f64, DataError> {
-    // The cell was checked as UTF-8 text already.
-    let s = std::str::from_utf8(text).unwrap_or_default();
-    match s.parse::<f64>() {
+    match fast_float2::parse::<f64, _>(text) {
         Ok(v) if v.is_finite() => Ok(v),
-        Ok(_) => Err(DataError::NotFinite {
-            at: at(),
-            text: s.to_string(),
-        }),
-        Err(_) => Err(DataError::NotANumber {
-            at: at(),
-            text: s.to_string(),
-        }),
+        parsed => {
+            let Ok(s) = std::str::from_utf8(text) else {
+                return Err(DataError::NotUtf8 { at: at() });
+            };
+            let text = s.to_string();
+            Err(if parsed.is_ok() {
+                DataError::NotFinite { at: at(), text }
+            } else {
+                DataError::NotANumber { at: at(), text }
+            })
+        }
     }
 }
 
