@@ -3,7 +3,7 @@
 //! printed once, here.
 
 use std::fs::File;
-use std::io::Write;
+use std::io::{IsTerminal, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
@@ -14,13 +14,38 @@ use crate::diagnostic::{Diagnostic, Snippet};
 use crate::digest::{HashingReader, sha256_hex};
 use crate::plan::{Format, Plan};
 use crate::results::Provenance;
-use crate::{TOOL_VERSION, analysis, data, output, plan, report};
+use crate::{TOOL_VERSION, analysis, audit, data, output, plan, report};
 
 /// Parses the command line and runs it.
 pub fn main() -> ExitCode {
     let cli = Cli::parse();
-    match cli.command {
-        Command::Run { plans, out } => run_plans(&plans, out.as_deref()),
+    let outcome = match cli.command {
+        Command::Run { plans, out } => return run_plans(&plans, out.as_deref()),
+        Command::Check { plan } => check(&plan),
+        Command::Verify { folder, data } => verify(&folder, data.as_deref()),
+        Command::Completions { shell } => {
+            let mut cmd = <Cli as clap::CommandFactory>::command();
+            clap_complete::generate(shell, &mut cmd, "slopewise", &mut std::io::stdout());
+            Ok(())
+        }
+        Command::Man => {
+            let cmd = <Cli as clap::CommandFactory>::command();
+            clap_mangen::Man::new(cmd)
+                .render(&mut std::io::stdout())
+                .map_err(|e| Diagnostic::new(format!("cannot write the manual page: {e}")))
+        }
+    };
+    finish(outcome)
+}
+
+/// Prints an error once and turns the outcome into the exit status.
+fn finish(outcome: Result<(), Diagnostic>) -> ExitCode {
+    match outcome {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(d) => {
+            let _ = std::io::stderr().write_all(d.render().as_bytes());
+            ExitCode::FAILURE
+        }
     }
 }
 
@@ -28,7 +53,23 @@ pub fn main() -> ExitCode {
 fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
     let several = plans.len() > 1;
     let mut failed = 0;
+    // A progress bar on a terminal; plain lines otherwise (logs, pipes, CI).
+    let bar = (several && std::io::stderr().is_terminal()).then(|| {
+        let bar = indicatif::ProgressBar::new(plans.len() as u64);
+        bar.set_style(
+            indicatif::ProgressStyle::with_template("{bar:30} {pos}/{len} {msg}")
+                .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+        );
+        bar
+    });
+    let say = |line: String| match &bar {
+        Some(b) => b.println(line),
+        None => println!("{line}"),
+    };
     for plan_path in plans {
+        if let Some(b) = &bar {
+            b.set_message(plan_path.display().to_string());
+        }
         let stem = plan_path.file_stem().unwrap_or_default();
         let target = out.map(|o| {
             if several {
@@ -56,12 +97,29 @@ fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
             _ => run_plan(plan_path, target.as_deref()),
         };
         match outcome {
-            Ok(written) => println!("{}: wrote {}", plan_path.display(), written.display()),
+            Ok(written) => say(format!(
+                "{}: wrote {}",
+                plan_path.display(),
+                written.display()
+            )),
             Err(d) => {
                 failed += 1;
-                let _ = std::io::stderr().write_all(d.render().as_bytes());
+                match &bar {
+                    Some(b) => b.suspend(|| {
+                        let _ = std::io::stderr().write_all(d.render().as_bytes());
+                    }),
+                    None => {
+                        let _ = std::io::stderr().write_all(d.render().as_bytes());
+                    }
+                }
             }
         }
+        if let Some(b) = &bar {
+            b.inc(1);
+        }
+    }
+    if let Some(b) = &bar {
+        b.finish_and_clear();
     }
     if several {
         println!(
@@ -80,7 +138,11 @@ fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
 /// A plan file read and parsed, with what error messages need to point into it.
 struct LoadedPlan {
     plan: Plan,
+    /// The path as shown in messages.
     file: String,
+    /// The file name recorded in provenance.
+    name: String,
+    bytes: Vec<u8>,
     source: String,
     sha256: String,
     dir: PathBuf,
@@ -103,50 +165,73 @@ fn load_plan(path: &Path) -> Result<LoadedPlan, Diagnostic> {
         Diagnostic::new(format!("cannot read the plan file {file}: {e}"))
             .help("check the path; `slopewise run plans/NAME.toml` runs a plan in the plans folder")
     })?;
-    let source = String::from_utf8(bytes.clone()).map_err(|_| {
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    parse_plan(
+        &file,
+        name,
+        &bytes,
+        path.parent().map(Path::to_path_buf).unwrap_or_default(),
+    )
+}
+
+fn parse_plan(
+    file: &str,
+    name: String,
+    bytes: &[u8],
+    dir: PathBuf,
+) -> Result<LoadedPlan, Diagnostic> {
+    let source = String::from_utf8(bytes.to_vec()).map_err(|_| {
         Diagnostic::new(format!("the plan file {file} is not UTF-8 text"))
             .help("save the plan as UTF-8")
     })?;
-    let plan = plan::load(&file, &source).map_err(|e| e.diagnostic())?;
+    let plan = plan::load(file, &source).map_err(|e| e.diagnostic())?;
     Ok(LoadedPlan {
         plan,
-        file,
-        sha256: sha256_hex(&bytes),
+        file: file.to_string(),
+        name,
+        bytes: bytes.to_vec(),
+        sha256: sha256_hex(bytes),
         source,
-        dir: path.parent().map(Path::to_path_buf).unwrap_or_default(),
+        dir,
     })
 }
 
-/// Runs one plan end to end and returns the folder it wrote.
-fn run_plan(plan_path: &Path, out: Option<&Path>) -> Result<PathBuf, Diagnostic> {
-    let lp = load_plan(plan_path)?;
+/// The plan's output folder: `--out`, else `report.out` beside the plan.
+fn target_of(lp: &LoadedPlan, out: Option<&Path>) -> Result<PathBuf, Diagnostic> {
+    match (out, &lp.plan.report.out) {
+        (Some(o), _) => Ok(o.to_path_buf()),
+        (None, Some(o)) => Ok(lp.dir.join(o)),
+        (None, None) => Err(Diagnostic::new(format!(
+            "the plan {} names no output folder",
+            lp.file
+        ))
+        .help("add `out = \"../reports/NAME\"` under [report], or pass `--out DIR`")),
+    }
+}
+
+/// The data read and analysed, with their hash.
+struct Analysed {
+    dataset: data::Dataset,
+    results: crate::results::Results,
+    data_path: PathBuf,
+}
+
+/// Reads the data (checking any pin) and runs the analysis.
+fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Diagnostic> {
     let plan = &lp.plan;
-    let target = match (out, &plan.report.out) {
-        (Some(o), _) => o.to_path_buf(),
-        (None, Some(o)) => lp.dir.join(o),
-        (None, None) => {
-            return Err(
-                Diagnostic::new(format!("the plan {} names no output folder", lp.file))
-                    .help("add `out = \"../reports/NAME\"` under [report], or pass `--out DIR`"),
-            );
-        }
-    };
-    let data_path = lp.dir.join(&plan.data.path);
     let data_file = data_path.display().to_string();
     let open = || {
-        File::open(&data_path).map_err(|e| {
+        File::open(data_path).map_err(|e| {
             Diagnostic::new(format!("cannot open the data file {data_file}: {e}"))
                 .at(lp.snippet(plan.spans.data_path.clone(), "named here"))
                 .help("data.path is relative to the folder that holds the plan file")
         })
     };
     if let Some(pin) = &plan.data.sha256 {
-        let mut reader = HashingReader::new(open()?);
-        std::io::copy(&mut reader, &mut std::io::sink())
-            .map_err(|e| Diagnostic::new(format!("cannot read the data file {data_file}: {e}")))?;
-        let actual = reader
-            .finish()
-            .map_err(|e| Diagnostic::new(format!("cannot read {data_file}: {e}")))?;
+        let actual = hash_file(open()?, &data_file)?;
         if &actual != pin {
             return Err(Diagnostic::new(format!(
                 "the data file {data_file} is not the one the plan pins: its SHA-256 is {actual}, the plan expects {pin}"
@@ -156,8 +241,7 @@ fn run_plan(plan_path: &Path, out: Option<&Path>) -> Result<PathBuf, Diagnostic>
         }
     }
     let mut reader = HashingReader::new(open()?);
-    let dataset =
-        data::load(plan, &mut reader).map_err(|e| data_diagnostic(&e, &lp, &data_file))?;
+    let dataset = data::load(plan, &mut reader).map_err(|e| data_diagnostic(&e, lp, &data_file))?;
     let data_sha256 = reader
         .finish()
         .map_err(|e| Diagnostic::new(format!("cannot read the data file {data_file}: {e}")))?;
@@ -165,10 +249,7 @@ fn run_plan(plan_path: &Path, out: Option<&Path>) -> Result<PathBuf, Diagnostic>
         tool_version: TOOL_VERSION.to_string(),
         plan_sha256: lp.sha256.clone(),
         data_sha256,
-        plan_file: plan_path
-            .file_name()
-            .map(|n| n.to_string_lossy().into_owned())
-            .unwrap_or_default(),
+        plan_file: lp.name.clone(),
         data_file: plan.data.path.clone(),
     };
     let results = analysis::run(plan, &dataset, provenance).map_err(|e| {
@@ -176,13 +257,29 @@ fn run_plan(plan_path: &Path, out: Option<&Path>) -> Result<PathBuf, Diagnostic>
         d.file = Some(data_file.clone());
         d
     })?;
-    let formats = &plan.report.formats;
+    Ok(Analysed {
+        dataset,
+        results,
+        data_path: data_path.to_path_buf(),
+    })
+}
+
+fn hash_file(file: File, shown: &str) -> Result<String, Diagnostic> {
+    HashingReader::new(file)
+        .finish()
+        .map_err(|e| Diagnostic::new(format!("cannot read the data file {shown}: {e}")))
+}
+
+/// Renders every output the plan asks for, plus the plan copy.
+fn render(lp: &LoadedPlan, a: &Analysed) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
+    let results = &a.results;
+    let formats = &lp.plan.report.formats;
     let wants = |f: Format| formats.contains(&f);
-    let mut files = Vec::new();
+    let mut files = vec![(audit::PLAN_COPY.to_string(), lp.bytes.clone())];
     let mut figure_refs = Vec::new();
     if wants(Format::Markdown) || wants(Format::Pdf) {
-        let points = analysis::figure_points(&dataset, &results);
-        for fig in report::figures::render(&results, &points)
+        let points = analysis::figure_points(&a.dataset, results);
+        for fig in report::figures::render(results, &points)
             .map_err(|e| Diagnostic::new(format!("the figures could not be drawn: {e}")))?
         {
             figure_refs.push(report::FigureRef {
@@ -197,32 +294,267 @@ fn run_plan(plan_path: &Path, out: Option<&Path>) -> Result<PathBuf, Diagnostic>
         r.map(String::into_bytes).map_err(|e| e.diagnostic())
     };
     if wants(Format::Json) {
-        files.push((
-            "results.json".to_string(),
-            rendered(report::json(&results))?,
-        ));
+        files.push(("results.json".to_string(), rendered(report::json(results))?));
     }
     if wants(Format::Markdown) {
         files.push((
             "report.md".to_string(),
-            rendered(report::markdown(&results, &figure_refs))?,
+            rendered(report::markdown(results, &figure_refs))?,
         ));
     }
-    if !wants(Format::Pdf) {
-        output::write_run_folder(&target, &files).map_err(|e| e.diagnostic())?;
-        return Ok(target);
+    if wants(Format::Pdf) {
+        files.push((
+            "report.typ".to_string(),
+            report::pdf::TEMPLATE.as_bytes().to_vec(),
+        ));
+        files.push((
+            "report-data.json".to_string(),
+            rendered(report::pdf::data(results, &figure_refs))?,
+        ));
     }
-    files.push((
-        "report.typ".to_string(),
-        report::pdf::TEMPLATE.as_bytes().to_vec(),
+    Ok(files)
+}
+
+/// Writes the run folder: outputs, then the PDF (if asked) and the manifest, in the
+/// staging folder before it is moved into place. `as_if` is the folder the manifest
+/// describes (the target, or for `verify` the folder being checked).
+fn write_outputs(
+    lp: &LoadedPlan,
+    a: &Analysed,
+    files: &[(String, Vec<u8>)],
+    target: &Path,
+    as_if: &Path,
+) -> Result<(), Diagnostic> {
+    let pdf = lp.plan.report.formats.contains(&Format::Pdf);
+    let data_from_run_folder = relative_to(as_if, &a.data_path);
+    let finish = |staging: &Path| -> Result<(), Diagnostic> {
+        let compiled = if pdf { compile_pdf(staging) } else { Ok(()) };
+        let manifest = audit::Manifest {
+            tool_version: TOOL_VERSION.to_string(),
+            plan_file: lp.name.clone(),
+            plan_sha256: lp.sha256.clone(),
+            data_file: lp.plan.data.path.clone(),
+            data_from_run_folder: data_from_run_folder.clone(),
+            data_sha256: a.results.provenance.data_sha256.clone(),
+            outputs: audit::Manifest::hash_outputs(&read_tree(staging)?),
+        };
+        std::fs::write(staging.join(audit::MANIFEST), manifest.to_bytes())
+            .map_err(|e| Diagnostic::new(format!("cannot write the manifest: {e}")))?;
+        compiled
+    };
+    output::write_run_folder_with(target, files, finish).map_err(|e| e.diagnostic())?
+}
+
+/// Runs one plan end to end and returns the folder it wrote.
+fn run_plan(plan_path: &Path, out: Option<&Path>) -> Result<PathBuf, Diagnostic> {
+    let lp = load_plan(plan_path)?;
+    let target = target_of(&lp, out)?;
+    let analysed = analyse(&lp, &lp.dir.join(&lp.plan.data.path))?;
+    let files = render(&lp, &analysed)?;
+    write_outputs(&lp, &analysed, &files, &target, &target)?;
+    Ok(target)
+}
+
+/// `slopewise check`: everything a run does except writing.
+fn check(plan_path: &Path) -> Result<(), Diagnostic> {
+    let lp = load_plan(plan_path)?;
+    let target = target_of(&lp, None).ok();
+    let data_path = lp.dir.join(&lp.plan.data.path);
+    let a = analyse(&lp, &data_path)?;
+    render(&lp, &a)?;
+    let r = &a.results;
+    let mut out = String::new();
+    out.push_str(&format!("plan {} is valid: \"{}\"\n", lp.file, r.title));
+    out.push_str(&format!(
+        "data {}: {} rows read, {} would be used",
+        data_path.display(),
+        r.data.rows_read,
+        r.data.rows_used
     ));
-    files.push((
-        "report-data.json".to_string(),
-        rendered(report::pdf::data(&results, &figure_refs))?,
+    let dropped: Vec<String> = r
+        .data
+        .rows_dropped
+        .iter()
+        .map(|(k, n)| format!("{n} {}", k.replace('_', " ")))
+        .collect();
+    if !dropped.is_empty() {
+        out.push_str(&format!(
+            " ({} left out: {})",
+            r.data.rows_read - r.data.rows_used,
+            dropped.join(", ")
+        ));
+    }
+    out.push('\n');
+    let groups: Vec<String> = r
+        .groups
+        .iter()
+        .map(|g| format!("{} (n = {})", g.level, g.n))
+        .collect();
+    out.push_str(&format!(
+        "model: {} on {} by {}; groups: {}\n",
+        r.model.response,
+        r.model.covariate,
+        r.model.group,
+        groups.join(", ")
     ));
-    let compiled =
-        output::write_run_folder_with(&target, &files, compile_pdf).map_err(|e| e.diagnostic())?;
-    compiled.map(|()| target)
+    let formats: Vec<&str> = lp.plan.report.formats.iter().map(|f| f.name()).collect();
+    match target {
+        Some(t) => out.push_str(&format!(
+            "a run would write {} ({})\n",
+            t.display(),
+            formats.join(", ")
+        )),
+        None => out.push_str("a run needs --out DIR: the plan names no report.out\n"),
+    }
+    for w in &r.warnings {
+        out.push_str(&format!("warning: {w}\n"));
+    }
+    print!("{out}");
+    Ok(())
+}
+
+/// `slopewise verify`: rerun the folder's plan on its data and compare bytes.
+fn verify(folder: &Path, data_override: Option<&Path>) -> Result<(), Diagnostic> {
+    let shown = folder.display().to_string();
+    let manifest_path = folder.join(audit::MANIFEST);
+    let manifest: audit::Manifest = std::fs::read(&manifest_path)
+        .map_err(|e| e.to_string())
+        .and_then(|b| serde_json::from_slice(&b).map_err(|e| e.to_string()))
+        .map_err(|e| {
+            Diagnostic::new(format!("{shown} has no readable {} ({e})", audit::MANIFEST))
+                .help("verify takes a folder written by `slopewise run`")
+        })?;
+    let plan_copy = folder.join(audit::PLAN_COPY);
+    let bytes = std::fs::read(&plan_copy)
+        .map_err(|e| Diagnostic::new(format!("cannot read {}: {e}", plan_copy.display())))?;
+    let lp = parse_plan(
+        &plan_copy.display().to_string(),
+        manifest.plan_file.clone(),
+        &bytes,
+        folder.to_path_buf(),
+    )?;
+    if lp.sha256 != manifest.plan_sha256 {
+        return Err(Diagnostic::new(format!(
+            "{} is not the plan the run recorded: its SHA-256 is {}, the manifest says {}",
+            plan_copy.display(),
+            lp.sha256,
+            manifest.plan_sha256
+        )));
+    }
+    let data_path = data_override.map_or_else(
+        || folder.join(&manifest.data_from_run_folder),
+        Path::to_path_buf,
+    );
+    let data_shown = data_path.display().to_string();
+    let file = File::open(&data_path).map_err(|e| {
+        Diagnostic::new(format!("cannot open the data file {data_shown}: {e}"))
+            .help("if the data moved, pass its new place with --data")
+    })?;
+    let actual = hash_file(file, &data_shown)?;
+    if actual != manifest.data_sha256 {
+        return Err(Diagnostic::new(format!(
+            "the data file {data_shown} has changed since the run: its SHA-256 is {actual}, the run recorded {}",
+            manifest.data_sha256
+        ))
+        .help("verify reruns on the recorded data only; restore that file, or run the plan again"));
+    }
+    let a = analyse(&lp, &data_path)?;
+    let files = render(&lp, &a)?;
+    let scratch = std::env::temp_dir().join(format!("slopewise-verify-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&scratch);
+    let rerun_dir = scratch.join("run");
+    let written = write_outputs(&lp, &a, &files, &rerun_dir, folder);
+    let rerun = written.and_then(|()| read_tree(&rerun_dir));
+    let _ = std::fs::remove_dir_all(&scratch);
+    let differences = audit::differences(&read_tree(folder)?, &rerun?);
+    if differences.is_empty() {
+        println!(
+            "{shown}: every output is identical to a fresh run ({} files)",
+            manifest.outputs.len() + 1
+        );
+        return Ok(());
+    }
+    let list: Vec<String> = differences.iter().map(|d| format!("  {d}")).collect();
+    Err(Diagnostic::new(format!(
+        "{shown} does not match a fresh run of its plan on its data:\n{}",
+        list.join("\n")
+    ))
+    .help("the folder was edited after the run, or was written by another slopewise version"))
+}
+
+/// Every file under `dir`, by relative path with `/` separators.
+fn read_tree(dir: &Path) -> Result<std::collections::BTreeMap<String, Vec<u8>>, Diagnostic> {
+    fn walk(
+        base: &Path,
+        dir: &Path,
+        out: &mut std::collections::BTreeMap<String, Vec<u8>>,
+    ) -> std::io::Result<()> {
+        for entry in std::fs::read_dir(dir)? {
+            let path = entry?.path();
+            if path.is_dir() {
+                walk(base, &path, out)?;
+            } else {
+                let rel = path.strip_prefix(base).unwrap_or(&path);
+                let key = rel
+                    .components()
+                    .map(|c| c.as_os_str().to_string_lossy())
+                    .collect::<Vec<_>>()
+                    .join("/");
+                out.insert(key, std::fs::read(&path)?);
+            }
+        }
+        Ok(())
+    }
+    let mut out = std::collections::BTreeMap::new();
+    walk(dir, dir, &mut out)
+        .map_err(|e| Diagnostic::new(format!("cannot read {}: {e}", dir.display())))?;
+    Ok(out)
+}
+
+/// `to` relative to the folder `from` (neither needs to exist yet; both are made
+/// absolute against the current folder). Falls back to the absolute path.
+fn relative_to(from: &Path, to: &Path) -> String {
+    let absolute = |p: &Path| {
+        let p = if p.is_absolute() {
+            p.to_path_buf()
+        } else {
+            std::env::current_dir().unwrap_or_default().join(p)
+        };
+        // Resolve what exists (symlinks, ..) and keep the rest as written.
+        let mut existing = p.clone();
+        let mut rest = Vec::new();
+        while !existing.exists() {
+            match (
+                existing.file_name().map(|n| n.to_os_string()),
+                existing.parent(),
+            ) {
+                (Some(name), Some(parent)) => {
+                    rest.push(name);
+                    existing = parent.to_path_buf();
+                }
+                _ => break,
+            }
+        }
+        let mut out = existing.canonicalize().unwrap_or(existing);
+        for name in rest.into_iter().rev() {
+            out.push(name);
+        }
+        out
+    };
+    let (from, to) = (absolute(from), absolute(to));
+    let f: Vec<_> = from.components().collect();
+    let t: Vec<_> = to.components().collect();
+    let common = f.iter().zip(&t).take_while(|(a, b)| a == b).count();
+    if common == 0 {
+        return to.display().to_string();
+    }
+    let mut parts: Vec<String> = vec!["..".to_string(); f.len() - common];
+    parts.extend(
+        t[common..]
+            .iter()
+            .map(|c| c.as_os_str().to_string_lossy().into_owned()),
+    );
+    parts.join("/")
 }
 
 /// The typst-cli version the PDF template is tested against.

@@ -26,4 +26,28 @@ pub enum Command {
         #[arg(long, value_name = "DIR")]
         out: Option<PathBuf>,
     },
+    /// Validate a plan and its data and say what a run would do; writes nothing.
+    Check {
+        /// Plan file (TOML).
+        #[arg(value_name = "PLAN.toml")]
+        plan: PathBuf,
+    },
+    /// Rerun a run folder's recorded plan on its data and compare every output byte
+    /// for byte.
+    Verify {
+        /// A folder written by `slopewise run`.
+        #[arg(value_name = "RUN_FOLDER")]
+        folder: PathBuf,
+        /// The data file, when it is no longer where the manifest says.
+        #[arg(long, value_name = "CSV")]
+        data: Option<PathBuf>,
+    },
+    /// Print a shell completion script.
+    Completions {
+        /// Shell to complete for.
+        #[arg(value_enum)]
+        shell: clap_complete::Shell,
+    },
+    /// Print the manual page (roff).
+    Man,
 }

@@ -13,7 +13,8 @@
 //!    decision, with warnings. Pure: plan + dataset in, [`results::Results`] out.
 //! 6. [`results`]: the serde types of `results.json` (the public contract).
 //! 7. [`report`]: Results to Markdown (minijinja templates) and JSON bytes.
-//! 8. [`output`]: run folders that appear whole or not at all.
+//! 8. [`output`]: run folders that appear whole or not at all; [`audit`]: their
+//!    manifests and the comparison `verify` makes.
 //! 9. [`app`] and [`cli`]: the edge. The only code that touches files, the
 //!    environment and the process; [`diagnostic`] renders every error once, there.
 
@@ -24,6 +25,7 @@
 
 pub mod analysis;
 pub mod app;
+pub mod audit;
 pub mod cli;
 pub mod data;
 pub mod diagnostic;
