@@ -23,19 +23,47 @@ pub fn main() -> ExitCode {
         Command::Run { plans, out } => return run_plans(&plans, out.as_deref()),
         Command::Check { plan } => check(&plan),
         Command::Verify { folder, data } => verify(&folder, data.as_deref()),
+        Command::Diff {
+            runs,
+            markdown,
+            figure,
+            alpha,
+            fail_on_change,
+        } => diff(
+            &runs,
+            markdown.as_deref(),
+            figure.as_deref(),
+            alpha,
+            fail_on_change,
+        ),
+        Command::Init { data, out } => init(&data, out.as_deref()),
+        Command::Schema => {
+            say(crate::schema::PLAN_SCHEMA);
+            Ok(())
+        }
         Command::Completions { shell } => {
             let mut cmd = <Cli as clap::CommandFactory>::command();
-            clap_complete::generate(shell, &mut cmd, "slopewise", &mut std::io::stdout());
+            let mut script = Vec::new();
+            clap_complete::generate(shell, &mut cmd, "slopewise", &mut script);
+            say(&String::from_utf8_lossy(&script));
             Ok(())
         }
         Command::Man => {
             let cmd = <Cli as clap::CommandFactory>::command();
+            let mut page = Vec::new();
             clap_mangen::Man::new(cmd)
-                .render(&mut std::io::stdout())
+                .render(&mut page)
+                .map(|()| say(&String::from_utf8_lossy(&page)))
                 .map_err(|e| Diagnostic::new(format!("cannot write the manual page: {e}")))
         }
     };
     finish(outcome)
+}
+
+/// Writes to stdout; a closed pipe (`slopewise diff … | head`) ends output quietly.
+fn say(text: &str) {
+    let mut out = std::io::stdout().lock();
+    let _ = out.write_all(text.as_bytes()).and_then(|()| out.flush());
 }
 
 /// Prints an error once and turns the outcome into the exit status.
@@ -62,9 +90,9 @@ fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
         );
         bar
     });
-    let say = |line: String| match &bar {
+    let progress_line = |line: String| match &bar {
         Some(b) => b.println(line),
-        None => println!("{line}"),
+        None => say(&format!("{line}\n")),
     };
     for plan_path in plans {
         if let Some(b) = &bar {
@@ -97,7 +125,7 @@ fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
             _ => run_plan(plan_path, target.as_deref()),
         };
         match outcome {
-            Ok(written) => say(format!(
+            Ok(written) => progress_line(format!(
                 "{}: wrote {}",
                 plan_path.display(),
                 written.display()
@@ -122,11 +150,11 @@ fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
         b.finish_and_clear();
     }
     if several {
-        println!(
-            "{} of {} plans ran; {failed} failed",
+        say(&format!(
+            "{} of {} plans ran; {failed} failed\n",
             plans.len() - failed,
             plans.len()
-        );
+        ));
     }
     if failed == 0 {
         ExitCode::SUCCESS
@@ -409,7 +437,7 @@ fn check(plan_path: &Path) -> Result<(), Diagnostic> {
     for w in &r.warnings {
         out.push_str(&format!("warning: {w}\n"));
     }
-    print!("{out}");
+    say(&out);
     Ok(())
 }
 
@@ -468,10 +496,10 @@ fn verify(folder: &Path, data_override: Option<&Path>) -> Result<(), Diagnostic>
     let _ = std::fs::remove_dir_all(&scratch);
     let differences = audit::differences(&read_tree(folder)?, &rerun?);
     if differences.is_empty() {
-        println!(
-            "{shown}: every output is identical to a fresh run ({} files)",
+        say(&format!(
+            "{shown}: every output is identical to a fresh run ({} files)\n",
             manifest.outputs.len() + 1
-        );
+        ));
         return Ok(());
     }
     let list: Vec<String> = differences.iter().map(|d| format!("  {d}")).collect();
@@ -480,6 +508,126 @@ fn verify(folder: &Path, data_override: Option<&Path>) -> Result<(), Diagnostic>
         list.join("\n")
     ))
     .help("the folder was edited after the run, or was written by another slopewise version"))
+}
+
+/// `slopewise diff`: what changed between runs.
+fn diff(
+    paths: &[PathBuf],
+    markdown: Option<&Path>,
+    figure: Option<&Path>,
+    alpha: f64,
+    fail_on_change: bool,
+) -> Result<(), Diagnostic> {
+    if !(alpha > 0.0 && alpha < 1.0) {
+        return Err(Diagnostic::new(format!(
+            "--alpha must lie strictly between 0 and 1, found {alpha}"
+        )));
+    }
+    let runs = paths
+        .iter()
+        .map(|p| load_run(p))
+        .collect::<Result<Vec<_>, _>>()?;
+    let n = runs.len();
+    let comparison = crate::seasons::compare(&runs[n - 2], &runs[n - 1], alpha);
+    let mut text = String::new();
+    let mut md = String::new();
+    if n > 2 {
+        let trend = crate::seasons::trend(&runs, alpha);
+        text.push_str(&crate::seasons::trend_text(&trend));
+        text.push('\n');
+        md.push_str(&crate::seasons::trend_markdown(&trend));
+        md.push('\n');
+        if let Some(path) = figure {
+            let svg = crate::seasons::trend_svg(&trend).map_err(|e| {
+                Diagnostic::new(format!("the trend figure could not be drawn: {e}"))
+            })?;
+            write_new_file(path, svg.as_bytes())?;
+        }
+    } else if figure.is_some() {
+        return Err(Diagnostic::new(
+            "--figure draws a trend, which needs three or more runs",
+        ));
+    }
+    text.push_str(&crate::seasons::comparison_text(&comparison));
+    md.push_str(&crate::seasons::comparison_markdown(&comparison));
+    say(&text);
+    if let Some(path) = markdown {
+        write_new_file(path, md.as_bytes())?;
+    }
+    if fail_on_change && comparison.flagged() {
+        return Err(Diagnostic::new(
+            "a decision flipped or a change is significant between the last two runs (--fail-on-change)",
+        ));
+    }
+    Ok(())
+}
+
+/// A run for `diff`: a results.json file, or a run folder holding one.
+fn load_run(path: &Path) -> Result<crate::seasons::Run, Diagnostic> {
+    let file = if path.is_dir() {
+        path.join("results.json")
+    } else {
+        path.to_path_buf()
+    };
+    let bytes = std::fs::read(&file).map_err(|e| {
+        Diagnostic::new(format!("cannot read {}: {e}", file.display()))
+            .help("diff takes results.json files or folders written by `slopewise run`")
+    })?;
+    let results = serde_json::from_slice(&bytes).map_err(|e| {
+        Diagnostic::new(format!(
+            "{} is not a slopewise results.json: {e}",
+            file.display()
+        ))
+        .help("it may come from another version; rerun that plan")
+    })?;
+    Ok(crate::seasons::Run {
+        label: path.display().to_string(),
+        results,
+    })
+}
+
+/// Writes a file whole (through a temporary name) and refuses to overwrite one.
+fn write_new_file(path: &Path, bytes: &[u8]) -> Result<(), Diagnostic> {
+    if path.exists() {
+        return Err(
+            Diagnostic::new(format!("{} already exists", path.display()))
+                .help("choose a new file name, or remove the old file first"),
+        );
+    }
+    let tmp = path.with_extension("partial");
+    std::fs::write(&tmp, bytes)
+        .and_then(|()| std::fs::rename(&tmp, path))
+        .map_err(|e| {
+            let _ = std::fs::remove_file(&tmp);
+            Diagnostic::new(format!("cannot write {}: {e}", path.display()))
+        })
+}
+
+/// `slopewise init`: a commented draft plan from the data's header.
+fn init(data: &Path, out: Option<&Path>) -> Result<(), Diagnostic> {
+    let shown = data.display().to_string();
+    let mut sample = Vec::new();
+    File::open(data)
+        .and_then(|f| std::io::Read::read_to_end(&mut std::io::Read::take(f, 4 << 20), &mut sample))
+        .map_err(|e| Diagnostic::new(format!("cannot read the data file {shown}: {e}")))?;
+    let in_plan = match out {
+        Some(plan) => relative_to(plan.parent().unwrap_or(Path::new(".")), data),
+        None => shown.clone(),
+    };
+    let text = crate::draft::draft_plan(&shown, &in_plan, &sample)
+        .map_err(|e| Diagnostic::new(e.to_string()).in_file(shown.clone()))?;
+    match out {
+        Some(path) => {
+            write_new_file(path, text.as_bytes())?;
+            say(&format!(
+                "wrote {}; review it, then `slopewise check {}`\n",
+                path.display(),
+                path.display()
+            ));
+        }
+        None => say(&text),
+    }
+    Ok(())
 }
 
 /// Every file under `dir`, by relative path with `/` separators.

@@ -42,6 +42,35 @@ pub enum Command {
         #[arg(long, value_name = "CSV")]
         data: Option<PathBuf>,
     },
+    /// Compare runs: two runs side by side, or a trend over several in order.
+    Diff {
+        /// results.json files or run folders, oldest first.
+        #[arg(required = true, num_args = 2.., value_name = "RUN")]
+        runs: Vec<PathBuf>,
+        /// Also write the comparison as Markdown to this file.
+        #[arg(long, value_name = "FILE")]
+        markdown: Option<PathBuf>,
+        /// With three or more runs, also write the trend figure (SVG) to this file.
+        #[arg(long, value_name = "FILE")]
+        figure: Option<PathBuf>,
+        /// Level for the tests of change.
+        #[arg(long, default_value_t = 0.05)]
+        alpha: f64,
+        /// Exit non-zero when a decision flipped or a change is significant.
+        #[arg(long)]
+        fail_on_change: bool,
+    },
+    /// Draft a commented plan from a CSV's header and first rows.
+    Init {
+        /// The data file.
+        #[arg(value_name = "DATA.csv")]
+        data: PathBuf,
+        /// Write the plan here (refuses to overwrite) instead of printing it.
+        #[arg(long, value_name = "PLAN.toml")]
+        out: Option<PathBuf>,
+    },
+    /// Print a JSON Schema of the plan file, for editors that complete TOML keys.
+    Schema,
     /// Print a shell completion script.
     Completions {
         /// Shell to complete for.

@@ -30,12 +30,15 @@ pub mod cli;
 pub mod data;
 pub mod diagnostic;
 pub mod digest;
+pub mod draft;
 pub mod fit;
 pub mod number;
 pub mod output;
 pub mod plan;
 pub mod report;
 pub mod results;
+pub mod schema;
+pub mod seasons;
 pub mod stats;
 
 /// The tool version recorded in every report's provenance.

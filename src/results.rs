@@ -51,6 +51,12 @@ pub struct Results {
     pub checks: Checks,
     /// The run repeated without the rows beyond the influence cut-offs, when asked.
     pub sensitivity: Option<Sensitivity>,
+    /// Where each line's one-sided confidence bound crosses the plan's limits.
+    pub limits: Vec<LimitCrossing>,
+    /// The earliest crossing per side when lines are not pooled.
+    pub limits_earliest: Vec<EarliestCrossing>,
+    /// The lot-pooling procedure, when the plan chose it.
+    pub pooling: Option<Pooling>,
     /// What the gate decided and which comparison leads the report.
     pub decision: Decision,
     /// Everything a reader should be warned about, in plain words.
@@ -525,6 +531,57 @@ pub struct CovariateBalance {
     pub p_value: Option<f64>,
     /// The covariate range every group covers, or null if none.
     pub overlap: Option<[f64; 2]>,
+}
+
+/// Where one line's one-sided confidence bound meets a limit.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct LimitCrossing {
+    /// Group label, or "pooled" for the pooled line.
+    pub level: String,
+    /// The limit.
+    pub limit: f64,
+    /// "lower" or "upper".
+    pub side: String,
+    /// One-sided confidence of the bound.
+    pub confidence: f64,
+    /// Covariate value where the bound meets the limit, or null.
+    pub crossing: Option<f64>,
+    /// Why there is no crossing: "moves-away" or "never-within"; null otherwise.
+    pub reason: Option<String>,
+    /// Smallest covariate value of the line's rows.
+    pub observed_min: f64,
+    /// Largest covariate value of the line's rows.
+    pub observed_max: f64,
+    /// True when the crossing lies beyond the observed maximum.
+    pub extrapolated: bool,
+    /// How far beyond the observed maximum the crossing lies (0 when within).
+    pub beyond: Option<f64>,
+    /// "separate", "common-slope" or "pooled".
+    pub model: String,
+}
+
+/// The earliest crossing of one side among the groups' lines.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct EarliestCrossing {
+    /// "lower" or "upper".
+    pub side: String,
+    /// The group whose bound crosses first.
+    pub level: String,
+    /// Its crossing.
+    pub crossing: f64,
+}
+
+/// The lot-pooling steps (ICH Q1E 2003).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Pooling {
+    /// Equal-slopes test p-value.
+    pub slopes_p: Option<f64>,
+    /// Equal-intercepts test p-value (parallel lines against one line).
+    pub intercepts_p: Option<f64>,
+    /// Level of both tests.
+    pub alpha: f64,
+    /// "separate", "common-slope" or "pooled".
+    pub decision: String,
 }
 
 /// The key results again, without the flagged rows.

@@ -265,7 +265,10 @@ fn group_with_fewer_than_three_usable_rows_is_left_out_with_a_warning() {
         .succeeds()
         .stdout_has(&["plan.toml: wrote out"])
         .run();
-    assert_eq!(out.entries("out"), ["report.md", "results.json"]);
+    assert_eq!(
+        out.entries("out"),
+        ["manifest.json", "plan.toml", "report.md", "results.json"]
+    );
     let r = out.json("out/results.json");
     let warning = "Group `east` was left out: it has 2 usable rows; a line needs at least 3.";
     let warnings = r["warnings"].as_array().expect("warnings is a list");
@@ -761,7 +764,7 @@ fn several_plans_one_failing_the_others_still_write() {
     ] {
         assert_eq!(
             out.entries(&format!("reports/{folder}")),
-            ["report.md", "results.json"]
+            ["manifest.json", "plan.toml", "report.md", "results.json"]
         );
         let r = out.json(&format!("reports/{folder}/results.json"));
         assert_eq!(r["title"], title);

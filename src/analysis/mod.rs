@@ -18,6 +18,7 @@ mod eligible;
 mod error;
 mod gate;
 pub mod influence;
+mod limits;
 mod regions;
 mod sensitivity;
 
@@ -238,6 +239,25 @@ fn procedure(
         )
     };
 
+    let pooling = limits::pooling(plan, equal_slopes.p_value, group_effect.p_value);
+    let limit_model = match (&pooling, homogeneous) {
+        (Some(p), _) => p.decision.clone(),
+        (None, true) => "common-slope".to_string(),
+        (None, false) => "separate".to_string(),
+    };
+    let (limits, limits_earliest) = match &plan.limits {
+        Some(spec) => limits::crossings(
+            spec,
+            &limit_model,
+            &levels,
+            separate,
+            common,
+            one,
+            &mut warnings,
+        ),
+        None => (Vec::new(), Vec::new()),
+    };
+
     let results = Results {
         title: plan.title.clone(),
         provenance,
@@ -287,6 +307,9 @@ fn procedure(
         effect_sizes,
         checks,
         sensitivity: None,
+        limits,
+        limits_earliest,
+        pooling,
         decision: decision::placeholder(),
         warnings: Vec::new(),
     };

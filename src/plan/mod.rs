@@ -10,7 +10,7 @@ mod error;
 mod schema;
 
 pub use error::PlanError;
-pub use schema::{Comparisons, Format, Regions, Transform};
+pub use schema::{Comparisons, Format, Procedure, Regions, Transform};
 
 use std::ops::Range;
 use toml::Spanned;
@@ -28,6 +28,8 @@ pub struct Plan {
     pub tests: TestSpec,
     /// Assumption checks and their options.
     pub checks: CheckSpec,
+    /// Limits the mean response must respect, if any.
+    pub limits: Option<LimitSpec>,
     /// What to write and where.
     pub report: ReportSpec,
     /// Spans of the values, for error messages that point into the plan.
@@ -102,6 +104,21 @@ pub struct TestSpec {
     /// Covariate values at which group differences are given when slopes differ;
     /// `None` means the quartiles of the covariate.
     pub compare_at: Option<Vec<f64>>,
+    /// How the model for limits is chosen.
+    pub procedure: Procedure,
+    /// Level of both lot-pooling tests.
+    pub pooling_alpha: f64,
+}
+
+/// The `[limits]` table: where the mean response must stay.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LimitSpec {
+    /// The mean must stay at or above this.
+    pub lower: Option<f64>,
+    /// The mean must stay at or below this.
+    pub upper: Option<f64>,
+    /// One-sided confidence of the bound compared with the limits.
+    pub confidence: f64,
 }
 
 /// The `[checks]` table.
@@ -299,6 +316,8 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
             comparisons: Comparisons::Holm,
             regions: Regions::Pointwise,
             compare_at: None,
+            procedure: Procedure::EqualSlopesGate,
+            pooling_alpha: 0.25,
         },
         Some(t) => {
             let t = t.get_ref();
@@ -313,6 +332,14 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                     .regions
                     .as_ref()
                     .map_or(Regions::Pointwise, |r| *r.get_ref()),
+                procedure: t
+                    .procedure
+                    .as_ref()
+                    .map_or(Procedure::EqualSlopesGate, |p| *p.get_ref()),
+                pooling_alpha: match &t.pooling_alpha {
+                    None => 0.25,
+                    Some(_) => level(t.pooling_alpha.as_ref(), "tests.pooling_alpha", &err)?,
+                },
                 compare_at: match &t.compare_at {
                     None => None,
                     Some(list) => {
@@ -369,6 +396,62 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
         }
     };
 
+    let limits = match &raw.limits {
+        None => None,
+        Some(l) => {
+            let span = l.span();
+            let l = l.get_ref();
+            let finite = |v: &Option<Spanned<f64>>, key: &str| -> Result<Option<f64>, PlanError> {
+                match v {
+                    Some(v) if !v.get_ref().is_finite() => Err(err(
+                        v.span(),
+                        format!("{key} must be a finite number"),
+                        "write the limit on the response's scale, e.g. 95.0",
+                    )),
+                    Some(v) => Ok(Some(*v.get_ref())),
+                    None => Ok(None),
+                }
+            };
+            let lower = finite(&l.lower, "limits.lower")?;
+            let upper = finite(&l.upper, "limits.upper")?;
+            if lower.is_none() && upper.is_none() {
+                return Err(err(
+                    span,
+                    "[limits] names neither `lower` nor `upper`".into(),
+                    "give the limit the mean response must respect, e.g. `lower = 95.0`",
+                ));
+            }
+            if let (Some(lo), Some(hi)) = (lower, upper) {
+                if lo >= hi {
+                    return Err(err(
+                        span,
+                        format!("limits.lower ({lo}) must be below limits.upper ({hi})"),
+                        "swap them, or check the numbers",
+                    ));
+                }
+            }
+            let confidence = match &l.confidence {
+                None => 0.95,
+                Some(c) if *c.get_ref() > 0.5 && *c.get_ref() < 1.0 => *c.get_ref(),
+                Some(c) => {
+                    return Err(err(
+                        c.span(),
+                        format!(
+                            "limits.confidence must lie between 0.5 and 1, found {}",
+                            c.get_ref()
+                        ),
+                        "a one-sided confidence such as 0.95",
+                    ));
+                }
+            };
+            Some(LimitSpec {
+                lower,
+                upper,
+                confidence,
+            })
+        }
+    };
+
     let checks = CheckSpec {
         sensitivity: raw
             .checks
@@ -380,6 +463,7 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
     Ok(Plan {
         title,
         checks,
+        limits,
         data: DataSpec {
             path,
             missing,

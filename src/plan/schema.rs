@@ -12,6 +12,7 @@ pub(super) struct RawPlan {
     pub model: Spanned<RawModel>,
     pub tests: Option<Spanned<RawTests>>,
     pub checks: Option<RawChecks>,
+    pub limits: Option<Spanned<RawLimits>>,
     pub report: Option<Spanned<RawReport>>,
 }
 
@@ -67,6 +68,27 @@ pub(super) struct RawTests {
     pub comparisons: Option<Spanned<Comparisons>>,
     pub regions: Option<Spanned<Regions>>,
     pub compare_at: Option<Spanned<Vec<Spanned<f64>>>>,
+    pub procedure: Option<Spanned<Procedure>>,
+    pub pooling_alpha: Option<Spanned<f64>>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(super) struct RawLimits {
+    pub lower: Option<Spanned<f64>>,
+    pub upper: Option<Spanned<f64>>,
+    pub confidence: Option<Spanned<f64>>,
+}
+
+/// How the model for the rest of the report is chosen.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Procedure {
+    /// The equal-slopes gate at `slopes_alpha`.
+    EqualSlopesGate,
+    /// ICH Q1E (2003) lot pooling: equal slopes, then equal intercepts, each at
+    /// `pooling_alpha`.
+    LotPooling,
 }
 
 #[derive(Debug, Deserialize)]

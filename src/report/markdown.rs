@@ -19,6 +19,7 @@ const SLOPE_PAIRS: &str = include_str!("../../templates/slope-pairs.md.j2");
 const COMMON_SLOPE: &str = include_str!("../../templates/common-slope.md.j2");
 const REGIONS: &str = include_str!("../../templates/regions.md.j2");
 const CHECKS: &str = include_str!("../../templates/checks.md.j2");
+const LIMITS: &str = include_str!("../../templates/limits.md.j2");
 const SUMMARY: &str = include_str!("../../templates/summary.j2");
 const CAUTIONS: &str = include_str!("../../templates/cautions.j2");
 
@@ -107,6 +108,7 @@ fn environment(markdown: bool) -> Result<Environment<'static>, Error> {
     env.add_template("common-slope.md.j2", COMMON_SLOPE)?;
     env.add_template("regions.md.j2", REGIONS)?;
     env.add_template("checks.md.j2", CHECKS)?;
+    env.add_template("limits.md.j2", LIMITS)?;
     env.add_template("summary.j2", SUMMARY)?;
     env.add_template("cautions.j2", CAUTIONS)?;
     Ok(env)
@@ -181,6 +183,8 @@ fn render(
             conf => confidence(r),
             adjust_name => adjustment_name(&r.model.comparisons),
             figures => Value::from(Serde(figures)),
+            limit_model => r.limits.first().map(|c| c.model.clone()).unwrap_or_default(),
+            limit_conf => r.limits.first().map(|c| format!("{}%", trimmed(100.0 * c.confidence, 4))).unwrap_or_default(),
         })
         .map_err(fail)
 }

@@ -211,6 +211,9 @@ pub fn data(r: &Results, figures: &[FigureRef]) -> Result<String, ReportError> {
         regions(&mut b, r, &x, &conf);
         common(&mut b, r, &x, &y, &g, &conf, adjust);
     }
+    if !r.limits.is_empty() {
+        limits(&mut b, r, &x, &y);
+    }
     checks(&mut b, r, &x, &g);
 
     if !figures.is_empty() {
@@ -484,6 +487,97 @@ fn regions(b: &mut Builder, r: &Results, x: &str, conf: &str) {
             })
             .collect(),
     );
+}
+
+fn limits(b: &mut Builder, r: &Results, x: &str, y: &str) {
+    b.h(1, "When the mean reaches a limit");
+    if let Some(pool) = &r.pooling {
+        b.para(format!(
+            "Lines were pooled step by step (ICH Q1E 2003), each test at level {}.",
+            trimmed(pool.alpha, 4)
+        ));
+        let (one, two) = match pool.decision.as_str() {
+            "separate" => ("yes: separate lines", "not needed"),
+            "common-slope" => ("no: one slope", "yes: parallel lines"),
+            _ => ("no: one slope", "no: one pooled line"),
+        };
+        b.table(
+            vec![
+                "step".into(),
+                "question".into(),
+                "p".into(),
+                "outcome".into(),
+            ],
+            2,
+            vec![
+                vec![
+                    "1".into(),
+                    "do the slopes differ?".into(),
+                    p(pool.slopes_p),
+                    one.into(),
+                ],
+                vec![
+                    "2".into(),
+                    "given one slope, do the intercepts differ?".into(),
+                    p(pool.intercepts_p),
+                    two.into(),
+                ],
+            ],
+        );
+    }
+    let model = r.limits.first().map_or("", |c| c.model.as_str());
+    let conf = r.limits.first().map_or(String::new(), |c| {
+        format!("{}%", trimmed(100.0 * c.confidence, 4))
+    });
+    b.para(format!(
+        "Each crossing is the {x} value where the one-sided {conf} confidence bound of the mean {y} meets the limit, read from {}.",
+        match model {
+            "pooled" => "the one pooled line",
+            "common-slope" => "the parallel lines (one slope, each group's own intercept)",
+            _ => "each group's own line and residual variance",
+        }
+    ));
+    b.table(
+        vec![
+            "line".into(),
+            "limit".into(),
+            format!("crossing at {x}"),
+            format!("last observed {x}"),
+            "beyond the data by".into(),
+        ],
+        2,
+        r.limits
+            .iter()
+            .map(|c| {
+                vec![
+                    c.level.clone(),
+                    format!("{} {}", c.side, sig(c.limit, 4)),
+                    match (c.crossing, c.reason.as_deref()) {
+                        (Some(v), _) => sig(v, 4),
+                        (None, Some("moves-away")) => {
+                            "none: the mean moves away from the limit".into()
+                        }
+                        _ => "none: the bound never meets the limit".into(),
+                    },
+                    sig(c.observed_max, 4),
+                    if c.extrapolated {
+                        format!("{} (extrapolated)", num3(c.beyond))
+                    } else {
+                        "within the data".into()
+                    },
+                ]
+            })
+            .collect(),
+    );
+    for e in &r.limits_earliest {
+        b.para(format!(
+            "Earliest {}-limit crossing: {} at {x} = {}.",
+            e.side,
+            e.level,
+            sig(e.crossing, 4)
+        ));
+    }
+    b.para("These estimates support, and do not replace, the evaluation that the applicable guidance (for stability data, ICH Q1E) and a qualified person require. Whether, and how far, an estimate may be extrapolated beyond the observed data is for that guidance to decide.");
 }
 
 fn checks(b: &mut Builder, r: &Results, x: &str, g: &str) {
