@@ -1,7 +1,8 @@
 //! Writes the invented demo data sets into a folder (default `demo-data`).
 //!
-//! Every value here is made up: nursery beds of tree seedlings over two seasons
-//! and a few pig-feed production lots, scenarios of our own. Nothing is measured.
+//! Every value here is made up: nursery beds of tree seedlings over two seasons,
+//! a few pig-feed production lots and a stability study of four tablet lots,
+//! scenarios of our own. Nothing is measured.
 //! The program uses only the standard library and its own seeded generator, so
 //! the files come out byte for byte the same on every run and on every machine
 //! that rounds `ln`, `sqrt` and `cos` the same way (values are rounded to one or
@@ -276,6 +277,40 @@ fn feed_lots() -> String {
     out
 }
 
+/// Invented stability study of a tablet: assay (% of label claim) of four
+/// production lots at the pull points of a 24-month programme, two assays per pull.
+/// The lots lose potency at one shared rate but start at slightly different levels
+/// (each blend fills a little differently), so lot-pooling (ICH Q1E, 2003) pools
+/// the slopes but not the intercepts, and the plan's lower limit of 95.0 % is
+/// reached by the common-slope lines. The newest lot has no 24-month pull yet.
+/// A generator of its own seed, so adding this file left the others' bytes as they were.
+fn stability_lots() -> String {
+    // (lot, assay at month 0 in % of label claim, last pull so far in months)
+    let lots: [(&str, f64, u32); 4] = [
+        ("TB-2601", 101.2, 24),
+        ("TB-2602", 100.4, 24),
+        ("TB-2603", 101.9, 24),
+        ("TB-2604", 99.8, 18),
+    ];
+    // Pull points in months (common practice for a long-term study, no source).
+    let pulls = [0u32, 3, 6, 9, 12, 18, 24];
+    // Loss of assay per month, shared by all lots, and the assay's noise sd (both %).
+    let slope = -0.15;
+    let noise_sd = 0.4;
+    let mut rng = Rng::new(0x57AB_2026);
+    let mut out = String::from("lot,months,replicate,assay_pct\n");
+    for (lot, start, last) in lots {
+        for month in pulls.into_iter().filter(|&m| m <= last) {
+            for replicate in 1..=2 {
+                let assay = start + slope * f64::from(month) + noise_sd * rng.normal();
+                writeln!(out, "{lot},{month},{replicate},{assay:.1}")
+                    .expect("writing to a String cannot fail");
+            }
+        }
+    }
+    out
+}
+
 /// The two nursery seasons. 2025: all beds share one slope (parallel lines, so
 /// the equal-slopes gate passes). 2026: the shade bed's seedlings stretch for
 /// light and gain little mass per centimetre, so its slope is clearly lower and
@@ -333,6 +368,7 @@ fn main() -> ExitCode {
         files.push((season.file, nursery(&season)));
     }
     files.push(("feed-lots-2026.csv", feed_lots()));
+    files.push(("stability-lots-2026.csv", stability_lots()));
     for (name, text) in files {
         let path = dir.join(name);
         if let Err(e) = fs::write(&path, text.as_bytes()) {

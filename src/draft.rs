@@ -145,6 +145,21 @@ impl DraftError {
     }
 }
 
+/// The group guess: among text columns with 2 to [`MAX_GROUP_LABELS`] labels and at
+/// least 3 rows per label (an id column has one row per label, and a line needs 3),
+/// the one with the fewest labels, preferring 3 or more over a two-label flag such as
+/// a status column; ties go to the earlier column. Failing that, the first text column
+/// with 2 to `MAX_GROUP_LABELS` labels.
+fn guess_group(text: &[usize], columns: &[Column]) -> Option<usize> {
+    let fits = |i: &usize| (2..=MAX_GROUP_LABELS).contains(&columns[*i].labels.len());
+    text.iter()
+        .copied()
+        .filter(fits)
+        .filter(|&i| columns[i].filled >= 3 * columns[i].labels.len())
+        .min_by_key(|&i| (columns[i].labels.len() < 3, columns[i].labels.len()))
+        .or_else(|| text.iter().copied().find(fits))
+}
+
 /// What the sample says about one column.
 #[derive(Debug)]
 struct Column {
@@ -231,8 +246,7 @@ pub fn draft_plan(
     }
     let response = numeric[numeric.len() - 1];
     let covariate = numeric[0];
-    let fits_group = |i: &usize| (2..=MAX_GROUP_LABELS).contains(&columns[*i].labels.len());
-    let group_guess = text.iter().copied().find(|i| fits_group(i));
+    let group_guess = guess_group(&text, columns);
 
     let stem = Path::new(csv_name)
         .file_stem()
@@ -363,7 +377,7 @@ pub fn draft_plan(
             line(
                 w,
                 &format!(
-                    "# GUESS, check it: the group is the first text column with 2 to {MAX_GROUP_LABELS} labels."
+                    "# GUESS, check it: the group is the text column with the fewest labels (3 or more preferred, at most {MAX_GROUP_LABELS}) that has at least 3 rows per label."
                 ),
             );
             line(w, &format!("group = {}", toml_string(&columns[g].name)));

@@ -399,7 +399,7 @@ fn test_change(what: &str, old: &Estimate, new: &Estimate, alpha: f64) -> Tested
     }
 }
 
-/// The levels of `a`, then those of `b` not in `a`: a stable order for both runs.
+/// Every level of the lists, in order of first appearance: one stable order for all runs.
 fn union_order<'a>(lists: impl IntoIterator<Item = Vec<&'a str>>) -> Vec<String> {
     let mut out: Vec<String> = Vec::new();
     for list in lists {

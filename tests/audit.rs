@@ -179,3 +179,164 @@ fn a_killed_run_leaves_the_previous_report_intact() {
     }
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+fn root() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+/// Demo plans rewritten to Markdown and JSON only, so no typst is needed here.
+fn demo_season(dir: &Path, season: &str) -> PathBuf {
+    let text = std::fs::read_to_string(root().join(format!("plans/nursery-{season}.toml")))
+        .unwrap()
+        .replace("../demo-data/", &format!("{}/demo-data/", root().display()))
+        .replace(
+            "formats = [\"markdown\", \"json\", \"pdf\"]",
+            "formats = [\"markdown\", \"json\"]",
+        );
+    let plan = dir.join(format!("nursery-{season}.toml"));
+    std::fs::write(&plan, text).unwrap();
+    let out = dir.join(season);
+    ok(&bin()
+        .arg("run")
+        .arg(&plan)
+        .arg("--out")
+        .arg(&out)
+        .output()
+        .unwrap());
+    out
+}
+
+#[test]
+fn diff_reports_the_seasons_flip_and_the_slope_changes() {
+    let dir = scratch("diff");
+    let (a, b) = (demo_season(&dir, "2025"), demo_season(&dir, "2026"));
+    let md = dir.join("diff.md");
+    let o = bin()
+        .arg("diff")
+        .arg(&a)
+        .arg(&b)
+        .arg("--markdown")
+        .arg(&md)
+        .output()
+        .unwrap();
+    ok(&o);
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        text.contains("The equal-slopes decision flipped: slopes equal before, unequal now"),
+        "{text}"
+    );
+    // Hand computation from the two results.json files: the shade-1 slope change.
+    let read = |p: &Path| -> serde_json::Value {
+        serde_json::from_slice(&std::fs::read(p.join("results.json")).unwrap()).unwrap()
+    };
+    let (ra, rb) = (read(&a), read(&b));
+    let group = |r: &serde_json::Value| {
+        r["groups"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|g| g["level"] == "shade-1")
+            .unwrap()
+            .clone()
+    };
+    let (ga, gb) = (group(&ra), group(&rb));
+    let change = gb["slope"].as_f64().unwrap() - ga["slope"].as_f64().unwrap();
+    let (sa, sb) = (
+        ga["slope_se"].as_f64().unwrap(),
+        gb["slope_se"].as_f64().unwrap(),
+    );
+    let t = change / (sa * sa + sb * sb).sqrt();
+    let (da, db) = (
+        ga["n"].as_f64().unwrap() - 2.0,
+        gb["n"].as_f64().unwrap() - 2.0,
+    );
+    let df = (sa * sa + sb * sb).powi(2) / (sa.powi(4) / da + sb.powi(4) / db);
+    let line = text.lines().find(|l| l.starts_with("shade-1")).unwrap();
+    assert!(line.contains(&slopewise::number::sig(change, 4)), "{line}");
+    assert!(line.contains(&format!("{:.1}", df)), "{line} (df {df})");
+    assert!(line.contains(&format!("{:.2}", t)), "{line} (t {t})");
+    let markdown = std::fs::read_to_string(&md).unwrap();
+    assert!(markdown.contains("shade-1"));
+    // For scripts: a flipped decision makes the status non-zero on request.
+    let o = bin()
+        .arg("diff")
+        .arg(&a)
+        .arg(&b)
+        .arg("--fail-on-change")
+        .output()
+        .unwrap();
+    assert!(!o.status.success());
+    assert!(
+        String::from_utf8_lossy(&o.stderr)
+            .contains("a decision flipped or a change is significant")
+    );
+    // A run against itself flags nothing.
+    ok(&bin()
+        .arg("diff")
+        .arg(&a)
+        .arg(&a)
+        .arg("--fail-on-change")
+        .output()
+        .unwrap());
+    // Three runs: a trend table and figure.
+    let fig = dir.join("trend.svg");
+    let o = bin()
+        .arg("diff")
+        .arg(&a)
+        .arg(&b)
+        .arg(&a)
+        .arg("--figure")
+        .arg(&fig)
+        .output()
+        .unwrap();
+    ok(&o);
+    assert!(std::fs::read_to_string(&fig).unwrap().starts_with("<svg"));
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn init_drafts_plans_that_check_accepts() {
+    let dir = scratch("init");
+    for csv in ["nursery-2025.csv", "nursery-2026.csv", "feed-lots-2026.csv"] {
+        let plan = dir.join(csv.replace(".csv", ".toml"));
+        let o = bin()
+            .arg("init")
+            .arg(root().join("demo-data").join(csv))
+            .arg("--out")
+            .arg(&plan)
+            .output()
+            .unwrap();
+        ok(&o);
+        let o = bin().arg("check").arg(&plan).output().unwrap();
+        ok(&o);
+        assert!(String::from_utf8_lossy(&o.stdout).contains("is valid"));
+        // init never overwrites.
+        let o = bin()
+            .arg("init")
+            .arg(root().join("demo-data").join(csv))
+            .arg("--out")
+            .arg(&plan)
+            .output()
+            .unwrap();
+        assert!(!o.status.success());
+        assert!(String::from_utf8_lossy(&o.stderr).contains("already exists"));
+    }
+    let o = bin().arg("schema").output().unwrap();
+    ok(&o);
+    let schema: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(schema["additionalProperties"], false);
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn completions_and_man_page_come_from_the_command_definitions() {
+    let o = bin().args(["completions", "bash"]).output().unwrap();
+    ok(&o);
+    let script = String::from_utf8_lossy(&o.stdout);
+    for cmd in ["run", "check", "verify", "diff", "init", "schema"] {
+        assert!(script.contains(cmd), "{cmd}");
+    }
+    let o = bin().arg("man").output().unwrap();
+    ok(&o);
+    assert!(String::from_utf8_lossy(&o.stdout).contains(".TH slopewise 1"));
+}

@@ -47,8 +47,9 @@ fn all_plans() -> Vec<PathBuf> {
     files
 }
 
-fn load(text: &str) -> Result<Plan, plan::PlanError> {
-    plan::load("draft.toml", text)
+/// The loader's verdict, its error as the message a person sees.
+fn load(text: &str) -> Result<Plan, String> {
+    plan::load("draft.toml", text).map_err(|e| e.to_string())
 }
 
 fn draft(name: &str, bytes: &[u8]) -> String {
@@ -144,7 +145,8 @@ fn drafts_of_every_demo_and_reference_csv_load_and_name_real_columns() {
 
         // The rule the draft documents, re-derived from the file: the response is
         // the last numeric column, the covariate the first other one, the group the
-        // first text column with 2 to 200 labels.
+        // text column with the fewest labels (3 or more preferred) among those with
+        // 2 to 200 labels and at least 3 rows per label, else the first with 2 to 200.
         let numeric: Vec<&String> = table
             .header
             .iter()
@@ -155,9 +157,13 @@ fn drafts_of_every_demo_and_reference_csv_load_and_name_real_columns() {
             .iter()
             .filter(|h| !table.is_numeric(h) && !table.column(h).is_empty())
             .collect();
+        let fits = |h: &&&String| (2..=MAX_GROUP_LABELS).contains(&table.labels(h).len());
         let group = text_columns
             .iter()
-            .find(|h| (2..=MAX_GROUP_LABELS).contains(&table.labels(h).len()))
+            .filter(fits)
+            .filter(|h| table.column(h).len() >= 3 * table.labels(h).len())
+            .min_by_key(|h| (table.labels(h).len() < 3, table.labels(h).len()))
+            .or_else(|| text_columns.iter().find(fits))
             .expect("every committed CSV has a grouping column");
         assert_eq!(&&plan.model.response, numeric.last().unwrap(), "{name}");
         assert_eq!(&plan.model.covariate, numeric[0], "{name}");
@@ -273,8 +279,8 @@ fn hostile_names_and_labels_are_escaped() {
     let plan = load(&text).unwrap_or_else(|e| panic!("{e}\n{text}"));
     assert_eq!(plan.model.response, names[2]);
     assert_eq!(plan.model.covariate, names[0]);
-    // "id" has 20 labels and comes first.
-    assert_eq!(plan.model.group, "id");
+    // "id" comes first but has one row per label; the hostile labels have four each.
+    assert_eq!(plan.model.group, names[1]);
     assert_eq!(plan.title, "odd \"name\"");
     assert_eq!(plan.report.out.as_deref(), Some("../reports/odd \"name\""));
 

@@ -185,6 +185,25 @@ fn every_contract_number_matches_statsmodels() {
         // The provenance line of the reference file, not a result.
         want.as_object_mut().unwrap().remove("source");
         let got = run_plan(plan_path);
+        // Earliest crossings per side: an object in the reference, a list here.
+        if let Some(earliest) = want.as_object_mut().unwrap().remove("earliest") {
+            let mine = got["limits_earliest"].as_array().unwrap();
+            let sides = earliest.as_object().unwrap();
+            assert_eq!(mine.len(), sides.len(), "{name} earliest");
+            for m in mine {
+                let w = &sides[m["side"].as_str().unwrap()];
+                assert_eq!(m["level"], w["level"], "{name} earliest");
+                let (a, b) = (
+                    m["crossing"].as_f64().unwrap(),
+                    w["crossing"].as_f64().unwrap(),
+                );
+                // statsmodels prediction bounds, brentq to 1e-12 (generate_limits.py).
+                assert!(
+                    (a - b).abs() <= 1e-9 * b.abs().max(1.0),
+                    "{name} earliest {a} vs {b}"
+                );
+            }
+        }
         // statsmodels 0.15.0 OLS, tests/reference/generate.py (within 1e-9 relative).
         let before = failures.len();
         compare(&want, &got, &name, 1e-9, &mut failures);

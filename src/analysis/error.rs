@@ -23,8 +23,15 @@ fn too_few(usable: &[String], excluded: &[(String, String)]) -> String {
             usable[0]
         ),
     };
-    for (level, why) in excluded {
+    const LISTED: usize = 5;
+    for (level, why) in excluded.iter().take(LISTED) {
         s.push_str(&format!("; `{level}` {why}"));
+    }
+    if excluded.len() > LISTED {
+        s.push_str(&format!(
+            "; and {} more groups like them",
+            excluded.len() - LISTED
+        ));
     }
     s
 }
