@@ -84,7 +84,7 @@ pub struct GroupPoints {
 }
 
 /// Tool version and the hashes that tie a report to its inputs.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
 pub struct Provenance {
     /// slopewise version.
     pub tool_version: String,

@@ -48,13 +48,7 @@ fn run(rows: &[(String, f64, f64)]) -> Results {
     let plan = plan::load("p.toml", PLAN).unwrap();
     let text = csv(rows);
     let dataset = data::load(&plan, text.as_bytes()).unwrap();
-    let provenance = Provenance {
-        tool_version: String::new(),
-        plan_sha256: String::new(),
-        data_sha256: String::new(),
-        plan_file: String::new(),
-        data_file: String::new(),
-    };
+    let provenance = Provenance::default();
     analysis::run(&plan, &dataset, provenance).unwrap()
 }
 

@@ -24,13 +24,7 @@ fn load(name: &str) -> (Plan, data::Dataset) {
 }
 
 fn run(plan: &Plan, dataset: &data::Dataset) -> Results {
-    let provenance = Provenance {
-        tool_version: String::new(),
-        plan_sha256: String::new(),
-        data_sha256: String::new(),
-        plan_file: String::new(),
-        data_file: String::new(),
-    };
+    let provenance = Provenance::default();
     analysis::run(plan, dataset, provenance).unwrap()
 }
 

@@ -112,13 +112,7 @@ fn run_plan(plan_path: &Path) -> Value {
     let data_path = plan_path.parent().unwrap().join(&plan.data.path);
     let file = std::fs::File::open(&data_path).unwrap();
     let dataset = data::load(&plan, file).unwrap();
-    let provenance = Provenance {
-        tool_version: String::new(),
-        plan_sha256: String::new(),
-        data_sha256: String::new(),
-        plan_file: String::new(),
-        data_file: String::new(),
-    };
+    let provenance = Provenance::default();
     let results = analysis::run(&plan, &dataset, provenance).unwrap();
     serde_json::to_value(results).unwrap()
 }

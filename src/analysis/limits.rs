@@ -139,59 +139,54 @@ pub(super) fn crossings(
     one: &OneLineFit,
     warnings: &mut Vec<String>,
 ) -> (Vec<LimitCrossing>, Vec<EarliestCrossing>) {
+    // Each line: its own moments, with the slope, Sxx, residual variance and df of
+    // the model the estimate is read from.
+    let line =
+        |level: &str, m: &crate::fit::Moments, slope: f64, sxx: f64, s2: Option<f64>, df: f64| {
+            BoundLine {
+                level: level.to_string(),
+                mean0: m.mean_y,
+                slope,
+                centre: m.mean_x,
+                inv_n: 1.0 / m.n as f64,
+                sxx,
+                s: s2.unwrap_or(f64::NAN).sqrt(),
+                df,
+                observed: [m.min_x, m.max_x],
+            }
+        };
     let lines: Vec<BoundLine> = match model {
         "pooled" => {
             let l = &one.line;
-            let m = &l.moments;
-            vec![BoundLine {
-                level: "pooled".into(),
-                mean0: m.mean_y,
-                slope: l.slope,
-                centre: m.mean_x,
-                inv_n: 1.0 / m.n as f64,
-                sxx: m.sxx,
-                s: l.sigma2().unwrap_or(f64::NAN).sqrt(),
-                df: l.df,
-                observed: [m.min_x, m.max_x],
-            }]
+            vec![line(
+                "pooled",
+                &l.moments,
+                l.slope,
+                l.moments.sxx,
+                l.sigma2(),
+                l.df,
+            )]
         }
         "common-slope" => separate
             .lines
             .iter()
             .zip(levels)
             .map(|(l, level)| {
-                let m = &l.moments;
-                BoundLine {
-                    level: level.to_string(),
-                    mean0: m.mean_y,
-                    slope: common.slope,
-                    centre: m.mean_x,
-                    inv_n: 1.0 / m.n as f64,
-                    sxx: common.sxx_within,
-                    s: common.sigma2().unwrap_or(f64::NAN).sqrt(),
-                    df: common.df,
-                    observed: [m.min_x, m.max_x],
-                }
+                line(
+                    level,
+                    &l.moments,
+                    common.slope,
+                    common.sxx_within,
+                    common.sigma2(),
+                    common.df,
+                )
             })
             .collect(),
         _ => separate
             .lines
             .iter()
             .zip(levels)
-            .map(|(l, level)| {
-                let m = &l.moments;
-                BoundLine {
-                    level: level.to_string(),
-                    mean0: m.mean_y,
-                    slope: l.slope,
-                    centre: m.mean_x,
-                    inv_n: 1.0 / m.n as f64,
-                    sxx: m.sxx,
-                    s: l.sigma2().unwrap_or(f64::NAN).sqrt(),
-                    df: l.df,
-                    observed: [m.min_x, m.max_x],
-                }
-            })
+            .map(|(l, level)| line(level, &l.moments, l.slope, l.moments.sxx, l.sigma2(), l.df))
             .collect(),
     };
     let mut out = Vec::new();

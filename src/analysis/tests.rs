@@ -7,13 +7,7 @@ fn run_csv(model_extra: &str, csv: &str) -> Result<Results, AnalysisError> {
     );
     let plan = plan::load("p.toml", &text).unwrap();
     let dataset = data::load(&plan, csv.as_bytes()).unwrap();
-    let provenance = Provenance {
-        tool_version: String::new(),
-        plan_sha256: String::new(),
-        data_sha256: String::new(),
-        plan_file: String::new(),
-        data_file: String::new(),
-    };
+    let provenance = Provenance::default();
     run(&plan, &dataset, provenance)
 }
 
