@@ -224,16 +224,32 @@ impl DataError {
                     Some(s) => d.help(format!("did you mean `{s}`?")),
                     None => d,
                 };
-                d.help(format!("columns in the data: {}", available.join(", ")))
+                let d = d.help(format!("columns in the data: {}", available.join(", ")));
+                // One column whose name holds another delimiter: the file is split wrongly.
+                match available.as_slice() {
+                    [only] if only.contains(';') => d.help("the header looks separated by \";\": set `delimiter = \";\"` under [data]"),
+                    [only] if only.contains('\t') => d.help("the header looks separated by tabs: set `delimiter = \"tab\"` under [data]"),
+                    [only] if only.contains('|') => d.help("the header looks separated by \"|\": set `delimiter = \"|\"` under [data]"),
+                    _ => d,
+                }
             }
             DataError::Ragged { .. } => d.help(
                 "every row needs as many fields as the header; check for a stray or missing delimiter, or quote fields that contain commas",
             ),
             DataError::NotUtf8 { .. } => d.help("save the file as UTF-8 text"),
             DataError::Syntax { .. } => d.help("check the quoting on that line"),
-            DataError::NotANumber { .. } => d.help(
-                "fix the cell, or if it marks a missing value add that text to data.missing (for example missing = [\"\", \"NA\", \"-\"])",
-            ),
+            DataError::NotANumber { text, .. } => {
+                let decimal_comma = text.contains(',')
+                    && !text.contains('.')
+                    && text.replacen(',', ".", 1).parse::<f64>().is_ok();
+                if decimal_comma {
+                    d.help("this looks like a decimal comma; slopewise reads numbers with a decimal point: export the file with `.` as the decimal mark (and, if fields are separated by \";\", set `delimiter = \";\"` under [data])")
+                } else {
+                    d.help(
+                        "fix the cell, or if it marks a missing value add that text to data.missing (for example missing = [\"\", \"NA\", \"-\"])",
+                    )
+                }
+            }
             DataError::NotFinite { .. } => {
                 d.help("replace it with a finite value, or with a missing-value token from data.missing")
             }

@@ -135,6 +135,7 @@ pub fn load<R: Read>(plan: &Plan, reader: R) -> Result<Dataset, DataError> {
         .has_headers(true)
         .flexible(false)
         .buffer_capacity(1 << 16)
+        .delimiter(plan.data.delimiter)
         .from_reader(reader);
     let columns = read_header(&mut csv)?;
     let layout = layout(plan, &columns)?;

@@ -179,3 +179,29 @@ fn quoted_fields_keep_commas() {
     .unwrap();
     assert_eq!(d.groups[0].level, "a, left");
 }
+
+#[test]
+fn other_delimiters_are_read_or_hinted() {
+    let csv = "g;x;y\na;1.5;2\na;2;3\n";
+    let d = load_str(&plan_with("", "delimiter = \";\""), csv).unwrap();
+    assert_eq!(d.groups[0].x.to_vec(), vec![1.5, 2.0]);
+    let e = load_str(&plan_with("", ""), csv).unwrap_err();
+    let text = e.diagnostic().render();
+    assert!(
+        text.contains("the header looks separated by \";\": set `delimiter = \";\"` under [data]"),
+        "{text}"
+    );
+    let tabs = load_str(&plan_with("", "delimiter = \"tab\""), "g\tx\ty\na\t1\t2\n").unwrap();
+    assert_eq!(tabs.rows_read, 1);
+}
+
+#[test]
+fn a_decimal_comma_is_refused_with_a_hint() {
+    let e = load_str(&plan_with("", "delimiter = \";\""), "g;x;y\na;1,5;2\n").unwrap_err();
+    let text = e.diagnostic().render();
+    assert!(
+        text.contains("holds `1,5`, which is not a number"),
+        "{text}"
+    );
+    assert!(text.contains("this looks like a decimal comma"), "{text}");
+}

@@ -47,6 +47,8 @@ pub struct DataSpec {
     pub sha256: Option<String>,
     /// Row filters; a row must pass all of them.
     pub keep: Vec<KeepRule>,
+    /// Field delimiter byte (default `,`).
+    pub delimiter: u8,
 }
 
 /// One `[[data.keep]]` filter.
@@ -192,6 +194,24 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
             Some(hex)
         }
         None => None,
+    };
+    let delimiter = match &data.delimiter {
+        None => b',',
+        Some(d) => match d.get_ref().as_str() {
+            "," => b',',
+            ";" => b';',
+            "\t" | "tab" => b'\t',
+            "|" => b'|',
+            other => {
+                return Err(err(
+                    d.span(),
+                    format!(
+                        "data.delimiter must be one of \",\", \";\", \"tab\" or \"|\", found {other:?}"
+                    ),
+                    "most files use \",\"; files saved with a decimal comma often use \";\"",
+                ));
+            }
+        },
     };
     let mut keep = Vec::new();
     let mut keep_columns = Vec::new();
@@ -469,6 +489,7 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
             missing,
             sha256,
             keep,
+            delimiter,
         },
         model: ModelSpec {
             response,

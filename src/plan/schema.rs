@@ -22,6 +22,7 @@ pub(super) struct RawData {
     pub path: Spanned<String>,
     pub missing: Option<Spanned<Vec<String>>>,
     pub sha256: Option<Spanned<String>>,
+    pub delimiter: Option<Spanned<String>>,
     #[serde(default)]
     pub keep: Vec<Spanned<RawKeep>>,
 }
