@@ -39,7 +39,7 @@ pub(super) fn select<'a>(
                     if m.n == 1 { "" } else { "s" }
                 ),
             )
-        } else if !(m.sxx > 0.0) {
+        } else if !(m.max_x > m.min_x) {
             (
                 "no_covariate_spread",
                 "has the same covariate value in every row, so it has no slope".to_string(),

@@ -13,6 +13,16 @@ pub enum AnalysisError {
         /// Groups left out, with why.
         excluded: Vec<(String, String)>,
     },
+    /// Values so large or so small that sums of squares leave floating point.
+    #[error(
+        "the values of `{column}` work at a scale of {magnitude:e}, beyond what sums of squares hold without overflow or underflow (values up to 1e150 and spreads from 1e-150 are supported)"
+    )]
+    Magnitude {
+        /// The column (response or covariate).
+        column: String,
+        /// The largest absolute value, or the smallest spread.
+        magnitude: f64,
+    },
 }
 
 fn too_few(usable: &[String], excluded: &[(String, String)]) -> String {
@@ -43,6 +53,8 @@ impl AnalysisError {
             AnalysisError::TooFewGroups { .. } => Diagnostic::new(self.to_string()).help(
                 "each group needs at least 3 usable rows with at least two different covariate values; check model.group, data.keep and data.missing",
             ),
+            AnalysisError::Magnitude { .. } => Diagnostic::new(self.to_string())
+                .help("express the column in other units (for example divide by 1e200), or use a log transform"),
         }
     }
 }

@@ -177,6 +177,7 @@ fn procedure(
 ) -> Result<(Results, Vec<u32>), AnalysisError> {
     let mut warnings = Vec::new();
     let eligible = eligible::select(data, &mut warnings)?;
+    check_magnitudes(plan, &eligible.groups)?;
     let moments: Vec<_> = eligible.groups.iter().map(|g| g.moments).collect();
     let fits = Fits::new(&eligible.groups);
     let (separate, common, one) = (&fits.separate, &fits.common, &fits.one);
@@ -314,6 +315,43 @@ fn procedure(
         warnings: Vec::new(),
     };
     Ok((decision::conclude(plan, results, warnings), flagged))
+}
+
+/// Squares of values beyond 1e150 overflow, and of spreads below 1e-150 underflow;
+/// either would turn sums of squares into infinity or zero. Refuse them plainly
+/// rather than report numbers that mean nothing.
+fn check_magnitudes(plan: &Plan, groups: &[&GroupData]) -> Result<(), AnalysisError> {
+    const LIMIT: f64 = 1e150;
+    let (mut max_x, mut max_y) = (0.0_f64, 0.0_f64);
+    let (mut lo_y, mut hi_y) = (f64::INFINITY, f64::NEG_INFINITY);
+    for g in groups {
+        max_x = max_x.max(g.moments.min_x.abs()).max(g.moments.max_x.abs());
+        for y in g.y.iter() {
+            max_y = max_y.max(y.abs());
+            lo_y = lo_y.min(y);
+            hi_y = hi_y.max(y);
+        }
+    }
+    let spread_x = groups
+        .iter()
+        .map(|g| g.moments.max_x - g.moments.min_x)
+        .fold(0.0, f64::max);
+    let response = plan.model.response_transform.label(&plan.model.response);
+    let covariate = plan.model.covariate_transform.label(&plan.model.covariate);
+    let bad = |column: String, magnitude: f64| Err(AnalysisError::Magnitude { column, magnitude });
+    if max_x > LIMIT {
+        return bad(covariate, max_x);
+    }
+    if max_y > LIMIT {
+        return bad(response, max_y);
+    }
+    if spread_x > 0.0 && spread_x < 1.0 / LIMIT {
+        return bad(covariate, spread_x);
+    }
+    if hi_y > lo_y && hi_y - lo_y < 1.0 / LIMIT {
+        return bad(response, hi_y - lo_y);
+    }
+    Ok(())
 }
 
 /// SS_effect / (SS_effect + SS_residual); `None` when both are zero.

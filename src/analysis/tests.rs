@@ -187,3 +187,26 @@ fn sensitivity_rerun_leaves_out_the_flagged_rows() {
         sens.groups[0].slope
     );
 }
+
+#[test]
+fn magnitudes_beyond_floating_point_are_refused_plainly() {
+    for (scale, shown) in [(1e300, "e300"), (1e-300, "e-300")] {
+        let mut s = String::from("g,x,y\n");
+        for g in ["a", "b"] {
+            for i in 1..6 {
+                s.push_str(&format!(
+                    "{g},{:e},{:e}\n",
+                    i as f64 * scale,
+                    (2 * i + i % 2) as f64 * scale
+                ));
+            }
+        }
+        let e = run_csv("", &s).unwrap_err();
+        let text = e.to_string();
+        assert!(
+            text.starts_with("the values of `x` work at a scale of"),
+            "{text}"
+        );
+        assert!(text.contains(shown), "{text}");
+    }
+}
