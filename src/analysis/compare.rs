@@ -19,8 +19,18 @@ use crate::stats::studentized_range;
 
 /// Tukey–Kramer p-value of a pairwise t (Tukey 1953; Kramer 1956): the upper tail of
 /// the studentized range for `k` groups and `df` at q = |t|·√2.
-pub(super) fn tukey_kramer(t: f64, k: usize, df: f64) -> f64 {
-    studentized_range::sf(t.abs() * std::f64::consts::SQRT_2, k, df)
+pub(super) fn tukey_kramer(t: f64, k: usize, df: f64) -> Option<f64> {
+    tukey_feasible(k).then(|| studentized_range::sf(t.abs() * std::f64::consts::SQRT_2, k, df))
+}
+
+/// Groups up to which Tukey–Kramer p-values are computed. Each costs a double
+/// integral (about a millisecond), and k groups have k(k − 1)/2 pairs: beyond 45
+/// groups (990 pairs) the run would spend many seconds on them.
+pub const MAX_TUKEY_GROUPS: usize = 45;
+
+/// True when Tukey–Kramer p-values are computed for `k` groups.
+pub(super) fn tukey_feasible(k: usize) -> bool {
+    k <= MAX_TUKEY_GROUPS
 }
 
 /// The common slope with its interval.
@@ -115,7 +125,7 @@ pub(super) fn pairwise_adjusted(
                 df: fit.df,
                 p_value: t.map(|t| t_two_sided(t, fit.df)),
                 p_adjusted: None,
-                p_tukey: t.map(|t| tukey_kramer(t, moments.len(), fit.df)),
+                p_tukey: t.and_then(|t| tukey_kramer(t, moments.len(), fit.df)),
             });
         }
     }

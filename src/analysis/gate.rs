@@ -110,7 +110,7 @@ pub(super) fn pairwise_slopes(
     if method == Comparisons::TukeyKramer {
         let k = fit.lines.len();
         for p in &mut pairs {
-            p.p_adjusted = p.t.map(|t| super::compare::tukey_kramer(t, k, fit.df));
+            p.p_adjusted = p.t.and_then(|t| super::compare::tukey_kramer(t, k, fit.df));
         }
     } else {
         fill_adjusted(&mut pairs, |p| p.p_value, |p, v| p.p_adjusted = v, method);

@@ -199,6 +199,14 @@ fn procedure(
     let adjusted_means = compare::adjusted_means(&levels, &moments, common, adjust_at, alpha);
     let pairwise_adjusted =
         compare::pairwise_adjusted(&levels, &moments, common, alpha, plan.tests.comparisons);
+    if !compare::tukey_feasible(levels.len()) {
+        warnings.push(format!(
+            "Tukey–Kramer p-values are left out (null): with {} groups there are {} pairs, and slopewise computes them for at most {} groups. Holm or Bonferroni adjustment covers any number of pairs.",
+            levels.len(),
+            levels.len() * (levels.len() - 1) / 2,
+            compare::MAX_TUKEY_GROUPS
+        ));
+    }
     let effect_sizes = EffectSizes {
         equal_slopes_partial_eta2: partial_eta2(common.rss - separate.rss, separate.rss),
         group_effect_partial_eta2: partial_eta2(one.line.rss - common.rss, common.rss),

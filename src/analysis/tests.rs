@@ -210,3 +210,24 @@ fn magnitudes_beyond_floating_point_are_refused_plainly() {
         assert!(text.contains(shown), "{text}");
     }
 }
+
+#[test]
+fn many_groups_skip_tukey_with_a_warning() {
+    let mut s = String::from("g,x,y\n");
+    for g in 0..50 {
+        for i in 0..4 {
+            let e = [0.3, -0.2, 0.1, -0.4][i];
+            s.push_str(&format!(
+                "g{g:02},{i},{}\n",
+                g as f64 * 0.1 + 2.0 * i as f64 + e
+            ));
+        }
+    }
+    let r = run_csv("", &s).unwrap();
+    assert_eq!(r.groups.len(), 50);
+    assert_eq!(r.pairwise_adjusted.len(), 50 * 49 / 2);
+    assert!(r.pairwise_adjusted.iter().all(|p| p.p_tukey.is_none()));
+    assert!(r.warnings.iter().any(|w| w.starts_with(
+        "Tukey–Kramer p-values are left out (null): with 50 groups there are 1225 pairs"
+    )));
+}

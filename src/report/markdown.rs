@@ -114,6 +114,9 @@ fn environment(markdown: bool) -> Result<Environment<'static>, Error> {
     Ok(env)
 }
 
+/// Rows a pairwise table shows at most; results.json always holds every pair.
+pub const MAX_TABLE_ROWS: usize = 200;
+
 /// A figure as the reports list it.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct FigureRef {
@@ -183,6 +186,7 @@ fn render(
             conf => confidence(r),
             adjust_name => adjustment_name(&r.model.comparisons),
             figures => Value::from(Serde(figures)),
+            max_rows => MAX_TABLE_ROWS,
             limit_model => r.limits.first().map(|c| c.model.clone()).unwrap_or_default(),
             limit_conf => r.limits.first().map(|c| format!("{}%", trimmed(100.0 * c.confidence, 4))).unwrap_or_default(),
         })

@@ -11,7 +11,9 @@
 use serde::Serialize;
 
 use super::ReportError;
-use super::markdown::{FigureRef, adjustment_name, confidence, drop_text, label, plain};
+use super::markdown::{
+    FigureRef, MAX_TABLE_ROWS, adjustment_name, confidence, drop_text, label, plain,
+};
 use crate::number::{p_equation, p_value, sig, trimmed};
 use crate::results::Results;
 
@@ -103,15 +105,23 @@ impl Builder {
         });
     }
     /// A table; the first `left` columns are left-aligned, the rest right-aligned.
-    fn table(&mut self, columns: Vec<String>, left: usize, rows: Vec<Vec<String>>) {
+    /// Long tables are cut at [`MAX_TABLE_ROWS`] with a note, as in the Markdown.
+    fn table(&mut self, columns: Vec<String>, left: usize, mut rows: Vec<Vec<String>>) {
         let align = (0..columns.len())
             .map(|i| if i < left { "left" } else { "right" })
             .collect();
+        let total = rows.len();
+        rows.truncate(MAX_TABLE_ROWS);
         self.blocks.push(Block::Table {
             columns,
             align,
             rows,
         });
+        if total > MAX_TABLE_ROWS {
+            self.para(format!(
+                "The first {MAX_TABLE_ROWS} of {total} rows are shown; results.json holds them all."
+            ));
+        }
     }
 }
 
