@@ -205,3 +205,42 @@ fn a_decimal_comma_is_refused_with_a_hint() {
     );
     assert!(text.contains("this looks like a decimal comma"), "{text}");
 }
+
+#[test]
+fn real_world_file_shapes() {
+    let p = plan_with("", "");
+    // CRLF line ends and a trailing empty line.
+    let d = load_str(&p, "g,x,y\r\na,1,2\r\na,2,3\r\n\r\n").unwrap();
+    assert_eq!(d.rows_read, 2);
+    assert_eq!(d.groups[0].y.to_vec(), vec![2.0, 3.0]);
+    // A quoted field holding a newline: one record, the label keeps the newline.
+    let d = load_str(&p, "g,x,y\n\"two\nlines\",1,2\n").unwrap();
+    assert_eq!(d.groups[0].level, "two\nlines");
+    // Numeric-looking and very long labels stay text labels.
+    let long = "L".repeat(5000);
+    let d = load_str(&p, &format!("g,x,y\n007,1,2\n7,1,2\n{long},1,2\n")).unwrap();
+    let labels: Vec<_> = d.groups.iter().map(|g| g.level.len()).collect();
+    assert_eq!(labels, vec![3, 1, 5000]);
+    // An empty label is a missing group (the default missing tokens include "").
+    let d = load_str(&p, "g,x,y\n,1,2\na,1,2\n").unwrap();
+    assert_eq!(d.dropped[&DropReason::MissingGroup], 1);
+}
+
+#[test]
+fn bytes_that_are_not_utf8_name_row_and_column() {
+    let p = plan_with("", "");
+    let mut bytes = b"g,x,y\na,1,2\n".to_vec();
+    bytes.extend_from_slice(b"b\xff,1,2\n");
+    let e = load(&p, bytes.as_slice()).unwrap_err();
+    assert_eq!(
+        e.to_string(),
+        "data row 2 (file line 3), column `g` (column 1) is not valid UTF-8 text"
+    );
+    let mut bytes = b"g,x,y\na,1,2\n".to_vec();
+    bytes.extend_from_slice(b"a,1\xff,2\n");
+    let e = load(&p, bytes.as_slice()).unwrap_err();
+    assert_eq!(
+        e.to_string(),
+        "data row 2 (file line 3), column `x` (column 2) is not valid UTF-8 text"
+    );
+}
