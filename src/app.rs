@@ -314,6 +314,7 @@ fn render(lp: &LoadedPlan, a: &Analysed) -> Result<Vec<(String, Vec<u8>)>, Diagn
                 file: fig.file.clone(),
                 title: fig.title.clone(),
                 caption: fig.caption.clone(),
+                width: fig.width,
             });
             files.push((fig.file, fig.svg.into_bytes()));
         }

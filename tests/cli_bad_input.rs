@@ -267,7 +267,13 @@ fn group_with_fewer_than_three_usable_rows_is_left_out_with_a_warning() {
         .run();
     assert_eq!(
         out.entries("out"),
-        ["manifest.json", "plan.toml", "report.md", "results.json"]
+        [
+            "figures",
+            "manifest.json",
+            "plan.toml",
+            "report.md",
+            "results.json"
+        ]
     );
     let r = out.json("out/results.json");
     let warning = "Group `east` was left out: it has 2 usable rows; a line needs at least 3.";
@@ -764,7 +770,13 @@ fn several_plans_one_failing_the_others_still_write() {
     ] {
         assert_eq!(
             out.entries(&format!("reports/{folder}")),
-            ["manifest.json", "plan.toml", "report.md", "results.json"]
+            [
+                "figures",
+                "manifest.json",
+                "plan.toml",
+                "report.md",
+                "results.json"
+            ]
         );
         let r = out.json(&format!("reports/{folder}/results.json"));
         assert_eq!(r["title"], title);

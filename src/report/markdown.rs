@@ -126,6 +126,8 @@ pub struct FigureRef {
     pub title: String,
     /// Caption, including how many points are drawn.
     pub caption: String,
+    /// Width in pixels, so the PDF prints every figure's text at one size.
+    pub width: u32,
 }
 
 /// Renders `report.md`.

@@ -55,6 +55,7 @@ enum Block {
     Figure {
         file: String,
         caption: String,
+        width: u32,
     },
 }
 
@@ -232,6 +233,7 @@ pub fn data(r: &Results, figures: &[FigureRef]) -> Result<String, ReportError> {
             b.blocks.push(Block::Figure {
                 file: f.file.clone(),
                 caption: format!("{}. {}", f.title, f.caption),
+                width: f.width,
             });
         }
     }
