@@ -202,6 +202,21 @@ for rows in "${sizes[@]}"; do
     table_rows+=("| $rows | $(mib "${csv_bytes[$l]}") | ${wall_s[$l]} | < $limit | $t_ok | $(mib $((peak_kb * 1024))) | $ratio | < 1.5 | $m_ok |")
 done
 
+# --- the demo plan with its PDF (typst included) --------------------------------------
+pdf_line="| demo plan with PDF | not measured: typst is not installed | < 2 | |"
+if command -v typst >/dev/null 2>&1; then
+    echo "== slopewise run plans/nursery-2026.toml with PDF (best of $runs)"
+    out=$work/out-demo
+    clear_out() { rm -rf "$out"; }
+    measure demo-pdf clear_out "$bin" run "$root/plans/nursery-2026.toml" --out "$out"
+    [[ -f $out/report.pdf ]] || die "the demo plan wrote no report.pdf"
+    demo_s=$(secs "$best_ns")
+    d_ok=$(verdict "$demo_s < 2")
+    [[ $d_ok == pass ]] || failures=$((failures + 1))
+    printf '   wall %s s (target < 2 s: %s), %s\n' "$demo_s" "$d_ok" "$(typst --version)"
+    pdf_line="| demo plan with PDF ($(typst --version)) | $demo_s s | < 2 s | $d_ok |"
+fi
+
 # --- pandas + statsmodels -----------------------------------------------------------
 
 python=
@@ -288,6 +303,10 @@ fi
     echo "|---|---|---|---|---|---|---|---|---|"
     printf '%s\n' "${table_rows[@]}"
     if ((quick)); then echo "| 10000000 | not measured (--quick) | | < 4 | | | | < 1.5 | |"; fi
+    echo
+    echo "| run | wall | target | |"
+    echo "|---|---|---|---|"
+    echo "$pdf_line"
     echo
     echo "Comparison pipeline (bench/pandas_pipeline.py: the same fits and tests with pandas +"
     echo "statsmodels, whole process including imports, best of $runs):"

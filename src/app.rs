@@ -268,11 +268,18 @@ fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Diagnostic> {
             .help("if the new data are intended, update data.sha256; otherwise restore the pinned file"));
         }
     }
-    let mut reader = HashingReader::new(open()?);
-    let dataset = data::load(plan, &mut reader).map_err(|e| data_diagnostic(&e, lp, &data_file))?;
-    let data_sha256 = reader
-        .finish()
-        .map_err(|e| Diagnostic::new(format!("cannot read the data file {data_file}: {e}")))?;
+    // Hash on a second core while the first parses: the file is read twice, but
+    // the second read comes from the page cache and the hash leaves the critical path.
+    let (for_hash, for_parse) = (open()?, open()?);
+    let (dataset, data_sha256) = std::thread::scope(|scope| {
+        let hasher = scope.spawn(|| hash_file(for_hash, &data_file));
+        let dataset = data::load(plan, for_parse).map_err(|e| data_diagnostic(&e, lp, &data_file));
+        let hash = hasher
+            .join()
+            .unwrap_or_else(|_| Err(Diagnostic::new("hashing the data file failed")));
+        (dataset, hash)
+    });
+    let (dataset, data_sha256) = (dataset?, data_sha256?);
     let provenance = Provenance {
         tool_version: TOOL_VERSION.to_string(),
         plan_sha256: lp.sha256.clone(),

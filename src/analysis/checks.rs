@@ -31,8 +31,7 @@ const QQ_POINTS: usize = 400;
 /// The separate-lines residual of each row of group `gi`, in data order.
 fn residuals<'a>(g: &'a GroupData, line_slope: f64) -> impl Iterator<Item = f64> + 'a {
     let m = g.moments;
-    g.x.iter()
-        .zip(g.y.iter())
+    g.points()
         .map(move |(x, y)| (y - m.mean_y) - line_slope * (x - m.mean_x))
 }
 

@@ -68,7 +68,7 @@ impl Model<'_> {
             let m = &g.moments;
             let b = self.slopes[gi];
             let inv_n = 1.0 / m.n as f64;
-            for ((x, y), row) in g.x.iter().zip(g.y.iter()).zip(g.rows.iter()) {
+            for (x, y, row) in g.rows_with_points() {
                 let d = x - m.mean_x;
                 let e = (y - m.mean_y) - b * d;
                 let h = (inv_n + d * d / self.sxx[gi]).min(1.0);

@@ -25,7 +25,6 @@ mod sensitivity;
 pub use error::AnalysisError;
 
 use crate::data::{Dataset, GroupData};
-use crate::fit::lines::rss_about;
 use crate::fit::{CommonSlopeFit, GroupLine, OneLineFit, SeparateFit};
 use crate::plan::{AdjustAt, Plan};
 use crate::results::{
@@ -89,8 +88,9 @@ pub fn figure_points(data: &Dataset, results: &Results) -> FigurePoints {
             } else {
                 (line.slope, line.intercept)
             };
-            let points = points(g)
+            let points = (0..n)
                 .step_by(step)
+                .filter_map(|i| Some((g.x.get(i)?, g.y.get(i)?)))
                 .map(|(x, y)| {
                     let fitted = intercept + slope * x;
                     [x, y, fitted, y - fitted]
@@ -116,29 +116,37 @@ struct Fits {
 impl Fits {
     fn new(groups: &[&GroupData]) -> Fits {
         let moments: Vec<_> = groups.iter().map(|g| g.moments).collect();
-        let lines: Vec<GroupLine> = groups
+        let mut lines: Vec<GroupLine> = moments
             .iter()
-            .map(|g| {
-                GroupLine::fit(&g.moments)
-                    .expect("eligible groups have covariate spread")
-                    .with_points(points(g))
-            })
+            .map(|m| GroupLine::fit(m).expect("eligible groups have covariate spread"))
             .collect();
-        let separate = SeparateFit::new(lines);
         let mut common =
             CommonSlopeFit::fit(&moments).expect("eligible groups have covariate spread");
-        common.rss = groups
-            .iter()
-            .map(|g| rss_about(points(g), g.moments.mean_x, g.moments.mean_y, common.slope))
-            .sum();
         let mut one = OneLineFit::fit(&moments).expect("eligible groups have covariate spread");
         let all = one.line.moments;
-        one.line.rss = groups
-            .iter()
-            .map(|g| rss_about(points(g), all.mean_x, all.mean_y, one.line.slope))
-            .sum();
+        // One pass over the rows gives every model's residual sum of squares
+        // (see `rss_about` for why they are not taken from the moments).
+        let (mut rss_common, mut rss_one) = (0.0, 0.0);
+        for (g, line) in groups.iter().zip(&mut lines) {
+            let m = &g.moments;
+            let (mut own, mut par, mut single) = (0.0, 0.0, 0.0);
+            for (x, y) in points(g) {
+                let (dx, dy) = (x - m.mean_x, y - m.mean_y);
+                let e = dy - line.slope * dx;
+                let c = dy - common.slope * dx;
+                let o = (y - all.mean_y) - one.line.slope * (x - all.mean_x);
+                own += e * e;
+                par += c * c;
+                single += o * o;
+            }
+            line.rss = own;
+            rss_common += par;
+            rss_one += single;
+        }
+        common.rss = rss_common;
+        one.line.rss = rss_one;
         Fits {
-            separate,
+            separate: SeparateFit::new(lines),
             common,
             one,
         }
@@ -231,7 +239,13 @@ fn procedure(
         let at = match &plan.tests.compare_at {
             Some(values) => values.clone(),
             None => {
-                let x = || eligible.groups.iter().flat_map(|g| g.x.iter());
+                let x = || {
+                    eligible
+                        .groups
+                        .iter()
+                        .flat_map(|g| g.x.chunks())
+                        .flat_map(|c| c.iter().copied())
+                };
                 quantiles(x, all.n, Some((all.min_x, all.max_x)), &[0.25, 0.5, 0.75])
             }
         };
@@ -371,7 +385,7 @@ fn partial_eta2(effect: f64, residual: f64) -> Option<f64> {
 
 /// A group's (x, y) pairs in data order.
 fn points(g: &GroupData) -> impl Iterator<Item = (f64, f64)> + '_ {
-    g.x.iter().zip(g.y.iter())
+    g.points()
 }
 
 fn one_line(one: &OneLineFit) -> OneLine {

@@ -46,6 +46,11 @@ impl<T: Copy> Column<T> {
         self.len == 0
     }
 
+    /// The chunks in order, as slices (for loops the compiler can keep tight).
+    pub fn chunks(&self) -> impl Iterator<Item = &[T]> + '_ {
+        self.chunks.iter().map(Vec::as_slice)
+    }
+
     /// The values in order.
     pub fn iter(&self) -> impl Iterator<Item = T> + '_ {
         self.chunks.iter().flat_map(|c| c.iter().copied())

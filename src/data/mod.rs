@@ -71,6 +71,24 @@ impl GroupData {
         }
     }
 
+    /// The (x, y) pairs in data order. Columns pushed together share chunk
+    /// boundaries, so the pairs come from zipped slices, not zipped chunk iterators.
+    pub fn points(&self) -> impl Iterator<Item = (f64, f64)> + '_ {
+        self.x
+            .chunks()
+            .zip(self.y.chunks())
+            .flat_map(|(x, y)| x.iter().copied().zip(y.iter().copied()))
+    }
+
+    /// The (x, y, data row) triples in data order.
+    pub fn rows_with_points(&self) -> impl Iterator<Item = (f64, f64, u32)> + '_ {
+        self.x
+            .chunks()
+            .zip(self.y.chunks())
+            .zip(self.rows.chunks())
+            .flat_map(|((x, y), r)| x.iter().zip(y).zip(r).map(|((x, y), r)| (*x, *y, *r)))
+    }
+
     #[inline]
     fn push(&mut self, row: u32, x: f64, y: f64) {
         self.x.push(x);
