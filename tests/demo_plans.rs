@@ -75,6 +75,12 @@ fn every_demo_plan_runs_and_reruns_byte_for_byte() {
             assert!(x == y, "{stem}/{file} differs between two runs");
         }
         let report = std::fs::read_to_string(a.join("report.md")).unwrap();
+        if std::fs::read_to_string(plan).unwrap().contains("[limits]") {
+            // The limits figure: lines, one-sided bounds and the limit.
+            let svg = std::fs::read_to_string(a.join("figures/limits.svg")).unwrap();
+            assert!(svg.contains("Limits and crossing points"), "{stem}");
+            assert!(report.contains("figures/limits.svg"), "{stem}");
+        }
         assert!(
             report.contains("professional judgement"),
             "{stem}: cautions missing"
