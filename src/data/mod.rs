@@ -9,9 +9,11 @@
 
 mod column;
 mod error;
+mod rows;
 
 pub use column::Column;
 pub use error::{CellAt, DataError, PlanKey};
+pub use rows::RowNumbers;
 
 use std::collections::{BTreeMap, HashMap};
 use std::io::Read;
@@ -55,7 +57,7 @@ pub struct GroupData {
     /// Transformed response values.
     pub y: Column<f64>,
     /// 1-based data row of each value (header excluded).
-    pub rows: Column<u32>,
+    pub rows: RowNumbers,
     /// One-pass moments of (x, y).
     pub moments: Moments,
 }
@@ -66,7 +68,7 @@ impl GroupData {
             level,
             x: Column::new(),
             y: Column::new(),
-            rows: Column::new(),
+            rows: RowNumbers::new(),
             moments: Moments::default(),
         }
     }
@@ -82,11 +84,9 @@ impl GroupData {
 
     /// The (x, y, data row) triples in data order.
     pub fn rows_with_points(&self) -> impl Iterator<Item = (f64, f64, u32)> + '_ {
-        self.x
-            .chunks()
-            .zip(self.y.chunks())
-            .zip(self.rows.chunks())
-            .flat_map(|((x, y), r)| x.iter().zip(y).zip(r).map(|((x, y), r)| (*x, *y, *r)))
+        self.points()
+            .zip(self.rows.iter())
+            .map(|((x, y), r)| (x, y, r))
     }
 
     #[inline]
@@ -120,7 +120,7 @@ impl Dataset {
             .iter()
             .map(|g| {
                 let mut out = GroupData::new(g.level.clone());
-                for ((x, y), row) in g.x.iter().zip(g.y.iter()).zip(g.rows.iter()) {
+                for (x, y, row) in g.rows_with_points() {
                     if rows.binary_search(&row).is_err() {
                         out.push(row, x, y);
                     }
