@@ -7,7 +7,7 @@
 # Builds the release binary and the data generator (examples/bench_data.rs),
 # writes the CSVs and their plans into bench/data/ (git-ignored; a CSV is reused
 # until the generator's source changes), times `slopewise run PLAN --out DIR`
-# (best of BENCH_RUNS runs, default 3, on a warm page cache), records peak
+# (best of BENCH_RUNS runs, default 5, on a warm page cache), records peak
 # resident memory, and checks the figures against the targets of the issue:
 #
 #   1M rows under 0.3 s, 10M rows under 4 s (on a 2-core machine),
@@ -51,7 +51,7 @@ bin=$target_dir/release/slopewise
 gen=$target_dir/release/examples/bench_data
 data_dir=${BENCH_DATA_DIR:-$root/bench/data}
 results_file=${BENCH_RESULTS:-$root/bench/RESULTS.md}
-runs=${BENCH_RUNS:-3}
+runs=${BENCH_RUNS:-5}
 
 work=$(mktemp -d "${TMPDIR:-/tmp}/slopewise-bench.XXXXXX")
 trap 'rm -rf "$work"' EXIT

@@ -720,7 +720,7 @@ pub const TYPST_VERSION: &str = "0.15.1";
 pub const TYPST_ENV: &str = "SLOPEWISE_TYPST";
 
 /// Font the PDF and the figures use, handed to typst so no system font is needed.
-const FONT: &[u8] = include_bytes!("../assets/fonts/DejaVuSans.ttf");
+const FONT: &[u8] = crate::report::figures::FONT_BYTES;
 
 /// Compiles `report.typ` in the staging folder into `report.pdf` with the external
 /// `typst`: project root fixed to the folder, system fonts ignored, and a fixed

@@ -1431,7 +1431,7 @@ pub fn trend_text(t: &Trend) -> String {
 
 /// The font every figure's text is measured and named with; plotters' ab_glyph
 /// backend knows only registered fonts, so it is registered once per process.
-const FONT: &[u8] = include_bytes!("../assets/fonts/DejaVuSans.ttf");
+const FONT: &[u8] = crate::report::figures::FONT_BYTES;
 
 fn ensure_font() -> Result<(), String> {
     static REGISTERED: OnceLock<Result<(), String>> = OnceLock::new();

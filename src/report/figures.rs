@@ -91,7 +91,7 @@ const POINT_BUDGET: usize = 10_000;
 /// The family name the font is registered under, and that the SVG asks for.
 const FONT_NAME: &str = "DejaVu Sans";
 /// The bundled font (licence in `assets/fonts/`).
-const FONT_BYTES: &[u8] = include_bytes!("../../assets/fonts/DejaVuSans.ttf");
+pub const FONT_BYTES: &[u8] = include_bytes!("../../assets/fonts/DejaVuSans.ttf");
 /// plotters' SVG backend writes a font size of `size / 1.24` pixels.
 const PLOTTERS_SIZE: f64 = 1.24;
 /// ab_glyph scales a font so ascent − descent equals the size; for DejaVu Sans that
