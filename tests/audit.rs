@@ -297,7 +297,14 @@ fn diff_reports_the_seasons_flip_and_the_slope_changes() {
 #[test]
 fn init_drafts_plans_that_check_accepts() {
     let dir = scratch("init");
-    for csv in ["nursery-2025.csv", "nursery-2026.csv", "feed-lots-2026.csv"] {
+    let mut csvs: Vec<String> = std::fs::read_dir(root().join("demo-data"))
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| n.ends_with(".csv"))
+        .collect();
+    csvs.sort();
+    assert!(csvs.len() >= 4, "{csvs:?}");
+    for csv in &csvs {
         let plan = dir.join(csv.replace(".csv", ".toml"));
         let o = bin()
             .arg("init")
