@@ -534,11 +534,7 @@ fn read_sample(file: &str, bytes: &[u8]) -> Result<Sample, DraftError> {
     let header = reader.byte_headers().map_err(syntax)?.clone();
     let mut columns = Vec::with_capacity(header.len());
     for (i, raw) in header.iter().enumerate() {
-        let raw = if i == 0 {
-            raw.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(raw)
-        } else {
-            raw
-        };
+        let raw = crate::data::header_cell(i, raw);
         let name = std::str::from_utf8(raw)
             .map_err(|_| DraftError::NotUtf8 {
                 file: file.to_string(),

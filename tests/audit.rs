@@ -304,27 +304,23 @@ fn init_drafts_plans_that_check_accepts() {
         .collect();
     csvs.sort();
     assert!(csvs.len() >= 4, "{csvs:?}");
-    for csv in &csvs {
-        let plan = dir.join(csv.replace(".csv", ".toml"));
-        let o = bin()
+    let init = |csv: &str, plan: &Path| {
+        bin()
             .arg("init")
             .arg(root().join("demo-data").join(csv))
             .arg("--out")
-            .arg(&plan)
+            .arg(plan)
             .output()
-            .unwrap();
-        ok(&o);
+            .unwrap()
+    };
+    for csv in &csvs {
+        let plan = dir.join(csv.replace(".csv", ".toml"));
+        ok(&init(csv, &plan));
         let o = bin().arg("check").arg(&plan).output().unwrap();
         ok(&o);
         assert!(String::from_utf8_lossy(&o.stdout).contains("is valid"));
         // init never overwrites.
-        let o = bin()
-            .arg("init")
-            .arg(root().join("demo-data").join(csv))
-            .arg("--out")
-            .arg(&plan)
-            .output()
-            .unwrap();
+        let o = init(csv, &plan);
         assert!(!o.status.success());
         assert!(String::from_utf8_lossy(&o.stderr).contains("already exists"));
     }

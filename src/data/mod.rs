@@ -327,6 +327,16 @@ pub fn load<R: Read>(plan: &Plan, reader: R) -> Result<Dataset, DataError> {
     })
 }
 
+/// A header cell without the UTF-8 byte-order mark some programs put before the
+/// first one (shared with the plan drafter, so both read a header alike).
+pub(crate) fn header_cell(i: usize, raw: &[u8]) -> &[u8] {
+    if i == 0 {
+        raw.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(raw)
+    } else {
+        raw
+    }
+}
+
 fn read_header<R: Read>(csv: &mut csv::Reader<R>) -> Result<Vec<String>, DataError> {
     let header = csv.byte_headers().map_err(|e| csv_error(e, 0))?.clone();
     if header.is_empty() || (header.len() == 1 && header[0].iter().all(u8::is_ascii_whitespace)) {
@@ -334,11 +344,7 @@ fn read_header<R: Read>(csv: &mut csv::Reader<R>) -> Result<Vec<String>, DataErr
     }
     let mut columns = Vec::with_capacity(header.len());
     for (i, raw) in header.iter().enumerate() {
-        let raw = if i == 0 {
-            raw.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(raw)
-        } else {
-            raw
-        };
+        let raw = header_cell(i, raw);
         let name = std::str::from_utf8(raw).map_err(|_| DataError::NotUtf8 {
             at: CellAt {
                 row: 0,
