@@ -270,10 +270,18 @@ fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Diagnostic> {
     }
     // Hash on a second core while the first parses: the file is read twice, but
     // the second read comes from the page cache and the hash leaves the critical path.
-    let (for_hash, for_parse) = (open()?, open()?);
+    // A large file is also parsed in two halves (see `data::load_seekable`).
+    let for_hash = open()?;
+    let len = for_hash
+        .metadata()
+        .map_err(|e| Diagnostic::new(format!("cannot read the data file {data_file}: {e}")))?
+        .len();
     let (dataset, data_sha256) = std::thread::scope(|scope| {
         let hasher = scope.spawn(|| hash_file(for_hash, &data_file));
-        let dataset = data::load(plan, for_parse).map_err(|e| data_diagnostic(&e, lp, &data_file));
+        let dataset = data::load_seekable(plan, len, data::PARALLEL_MIN_BYTES, || {
+            File::open(data_path)
+        })
+        .map_err(|e| data_diagnostic(&e, lp, &data_file));
         let hash = hasher
             .join()
             .unwrap_or_else(|_| Err(Diagnostic::new("hashing the data file failed")));

@@ -115,3 +115,69 @@ proptest! {
         }
     }
 }
+
+/// One cell of a generated file: mostly numbers, sometimes a missing token, a
+/// bad cell or a quoted value.
+fn cell() -> impl Strategy<Value = String> {
+    prop_oneof![
+        8 => (-1e3f64..1e3).prop_map(|v| format!("{v}")),
+        1 => Just("NA".to_string()),
+        1 => prop_oneof![Just("x9"), Just("inf"), Just("\"7\""), Just("")].prop_map(String::from),
+    ]
+}
+
+/// A generated file: rows of group, x, y with blank lines, short rows and a
+/// choice of line end.
+fn messy_file() -> impl Strategy<Value = String> {
+    let row = (0usize..4, cell(), cell(), 0u8..40).prop_map(|(g, x, y, shape)| {
+        let g = ["a", "b", "c", "NA"][g];
+        match shape {
+            0 => String::new(),      // a blank line
+            1 => format!("{g},{x}"), // a short row
+            _ => format!("{g},{x},{y}"),
+        }
+    });
+    (prop::collection::vec(row, 0..120), any::<bool>()).prop_map(|(rows, crlf)| {
+        let end = if crlf { "\r\n" } else { "\n" };
+        let mut text = format!("g,x,y{end}");
+        for r in rows {
+            text.push_str(&r);
+            text.push_str(end);
+        }
+        text
+    })
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 256, .. ProptestConfig::default() })]
+
+    /// Reading a file in two halves on two threads gives what one pass gives:
+    /// the same rows, values and drop counts, or the same error (rows and lines
+    /// included). Moments are merged, so they agree to rounding.
+    #[test]
+    fn two_halves_read_as_one_pass(text in messy_file()) {
+        let plan = plan::load("p.toml", &PLAN.replace("[model]", "missing = [\"NA\"]\n[model]")).unwrap();
+        let bytes = text.as_bytes();
+        let len = bytes.len() as u64;
+        let open = || Ok(std::io::Cursor::new(bytes));
+        let one = data::load_seekable(&plan, len, u64::MAX, open);
+        let two = data::load_seekable(&plan, len, 0, open);
+        match (one, two) {
+            (Err(a), Err(b)) => prop_assert_eq!(a, b),
+            (Ok(a), Ok(b)) => {
+                prop_assert_eq!(a.rows_read, b.rows_read);
+                prop_assert_eq!(&a.dropped, &b.dropped);
+                prop_assert_eq!(a.groups.len(), b.groups.len());
+                for (g, h) in a.groups.iter().zip(&b.groups) {
+                    prop_assert_eq!(&g.level, &h.level);
+                    prop_assert_eq!(g.x.to_vec(), h.x.to_vec());
+                    prop_assert_eq!(g.y.to_vec(), h.y.to_vec());
+                    prop_assert_eq!(g.rows.to_vec(), h.rows.to_vec());
+                    prop_assert_eq!(g.moments.n, h.moments.n);
+                    prop_assert!(close(g.moments.sxy, h.moments.sxy, 1e-9));
+                }
+            }
+            (a, b) => prop_assert!(false, "one pass {:?}, halves {:?}", a.err(), b.err()),
+        }
+    }
+}

@@ -18,8 +18,8 @@ fn load(name: &str) -> (Plan, data::Dataset) {
     let plan_path = reference_dir().join(format!("plans/{name}.toml"));
     let text = std::fs::read_to_string(&plan_path).unwrap();
     let plan = plan::load(name, &text).unwrap();
-    let file = std::fs::File::open(plan_path.parent().unwrap().join(&plan.data.path)).unwrap();
-    let dataset = data::load(&plan, file).unwrap();
+    let bytes = std::fs::read(plan_path.parent().unwrap().join(&plan.data.path)).unwrap();
+    let dataset = data::load(&plan, &bytes).unwrap();
     (plan, dataset)
 }
 

@@ -107,11 +107,18 @@ fn reference_dir() -> PathBuf {
 
 /// Runs a plan through the library exactly as the binary does, without writing.
 fn run_plan(plan_path: &Path) -> Value {
+    run_plan_with(plan_path, data::PARALLEL_MIN_BYTES)
+}
+
+/// As `run_plan`, reading the data in two halves when the file has at least
+/// `min_bytes` (0: always).
+fn run_plan_with(plan_path: &Path, min_bytes: u64) -> Value {
     let text = std::fs::read_to_string(plan_path).unwrap();
     let plan = plan::load(&plan_path.display().to_string(), &text).unwrap();
     let data_path = plan_path.parent().unwrap().join(&plan.data.path);
-    let file = std::fs::File::open(&data_path).unwrap();
-    let dataset = data::load(&plan, file).unwrap();
+    let len = std::fs::metadata(&data_path).unwrap().len();
+    let dataset =
+        data::load_seekable(&plan, len, min_bytes, || std::fs::File::open(&data_path)).unwrap();
     let provenance = Provenance::default();
     let results = analysis::run(&plan, &dataset, provenance).unwrap();
     serde_json::to_value(results).unwrap()
@@ -179,6 +186,9 @@ fn every_contract_number_matches_statsmodels() {
         // The provenance line of the reference file, not a result.
         want.as_object_mut().unwrap().remove("source");
         let got = run_plan(plan_path);
+        // The two-thread reading of large files gives the same numbers; these small
+        // files are read in halves here to show it.
+        let halves = run_plan_with(plan_path, 0);
         // Earliest crossings per side: an object in the reference, a list here.
         if let Some(earliest) = want.as_object_mut().unwrap().remove("earliest") {
             let mine = got["limits_earliest"].as_array().unwrap();
@@ -201,6 +211,13 @@ fn every_contract_number_matches_statsmodels() {
         // statsmodels 0.15.0 OLS, tests/reference/generate.py (within 1e-9 relative).
         let before = failures.len();
         compare(&want, &got, &name, 1e-9, &mut failures);
+        compare(
+            &want,
+            &halves,
+            &format!("{name} (read in halves)"),
+            1e-9,
+            &mut failures,
+        );
         compared += 1;
         if failures.len() == before {
             // The gate's verdict follows from the p-value and slopes_alpha.

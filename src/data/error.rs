@@ -191,6 +191,59 @@ fn list_rows(rows: &[(u64, f64)]) -> String {
 }
 
 impl DataError {
+    /// The error as it reads for the whole file, when it was found in a part of it
+    /// that starts after `rows` data rows (lines are counted afresh, see `lines`).
+    pub(super) fn shifted(self, rows: u64) -> DataError {
+        let at = |at: CellAt| CellAt {
+            row: at.row + rows,
+            ..at
+        };
+        match self {
+            DataError::Ragged {
+                row,
+                line,
+                expected,
+                found,
+            } => DataError::Ragged {
+                row: row + rows,
+                line,
+                expected,
+                found,
+            },
+            DataError::NotUtf8 { at: a } => DataError::NotUtf8 { at: at(a) },
+            DataError::NotANumber { at: a, text } => DataError::NotANumber { at: at(a), text },
+            DataError::NotFinite { at: a, text } => DataError::NotFinite { at: at(a), text },
+            DataError::UnlistedLevel {
+                row,
+                line,
+                label,
+                column,
+                near,
+            } => DataError::UnlistedLevel {
+                row: row + rows,
+                line,
+                label,
+                column,
+                near,
+            },
+            other => other,
+        }
+    }
+
+    /// The error with its file line replaced (for errors that name one).
+    pub(super) fn with_line(mut self, new: u64) -> DataError {
+        match &mut self {
+            DataError::Ragged { line, .. }
+            | DataError::Syntax { line, .. }
+            | DataError::UnlistedLevel { line, .. } => *line = new,
+            DataError::NotUtf8 { at }
+            | DataError::NotANumber { at, .. }
+            | DataError::NotFinite { at, .. } => at.line = new,
+            _ => {}
+        }
+        self
+    }
+
     /// The plan key this error concerns, so the caller can show the plan line.
     pub fn plan_key(&self) -> Option<PlanKey> {
         match self {

@@ -9,11 +9,16 @@
 
 mod column;
 mod error;
+mod lines;
 mod rows;
+mod split;
 
 pub use column::Column;
 pub use error::{CellAt, DataError, PlanKey};
 pub use rows::RowNumbers;
+pub use split::{PARALLEL_MIN_BYTES, load_seekable};
+
+use lines::Located;
 
 use std::collections::{BTreeMap, HashMap};
 use std::io::Read;
@@ -96,6 +101,15 @@ impl GroupData {
         self.rows.push(row);
         self.moments.push(x, y);
     }
+
+    /// Appends the rows of the same group from a later part of the file, whose row
+    /// numbers start `rows_before` rows on.
+    fn append(&mut self, later: GroupData, rows_before: u32) {
+        self.x.append(later.x);
+        self.y.append(later.y);
+        self.rows.append(later.rows, rows_before);
+        self.moments = self.moments.merge(&later.moments);
+    }
 }
 
 /// What the loader read.
@@ -147,54 +161,140 @@ struct Layout {
     keep: Vec<(usize, Vec<Vec<u8>>)>,
 }
 
-/// Reads the CSV and sorts its rows into groups, as the plan says.
-pub fn load<R: Read>(plan: &Plan, reader: R) -> Result<Dataset, DataError> {
-    let mut csv = csv::ReaderBuilder::new()
-        .has_headers(true)
-        .flexible(false)
+/// Reads a CSV held in memory and sorts its rows into groups, as the plan says.
+/// Files are read with [`load_seekable`], which this calls with the bytes.
+pub fn load(plan: &Plan, bytes: &[u8]) -> Result<Dataset, DataError> {
+    load_seekable(plan, bytes.len() as u64, u64::MAX, || {
+        Ok(std::io::Cursor::new(bytes))
+    })
+}
+
+/// One thread, one pass over `reader`; errors keep the byte offset of their record.
+fn one_pass<R: Read>(plan: &Plan, reader: R) -> Result<Dataset, Located> {
+    let mut csv = csv_reader(plan, true, reader);
+    let columns = read_header(&mut csv)?;
+    let sorter = Sorter::new(plan, &columns)?;
+    let mut part = sorter.part();
+    sorter.read(&mut csv, &mut part)?;
+    Ok(sorter.finish(part)?)
+}
+
+/// The CSV reader every part uses. Records of any length are read, and the sorter
+/// checks each against the header, so a part that starts mid-file checks the same.
+fn csv_reader<R: Read>(plan: &Plan, has_headers: bool, reader: R) -> csv::Reader<R> {
+    csv::ReaderBuilder::new()
+        .has_headers(has_headers)
+        .flexible(true)
         .buffer_capacity(1 << 16)
         .delimiter(plan.data.delimiter)
-        .from_reader(reader);
-    let columns = read_header(&mut csv)?;
-    let layout = layout(plan, &columns)?;
-    let missing: Vec<Vec<u8>> = plan
-        .data
-        .missing
-        .iter()
-        .map(|m| m.trim().as_bytes().to_vec())
-        .collect();
-    let is_missing = |cell: &[u8]| missing.iter().any(|m| m.as_slice() == cell);
-    let model = &plan.model;
+        .from_reader(reader)
+}
 
-    let listed: Option<HashMap<Vec<u8>, usize>> = model.levels.as_ref().map(|levels| {
-        levels
-            .iter()
-            .enumerate()
-            .map(|(i, l)| (l.as_bytes().to_vec(), i))
-            .collect()
-    });
-    let mut groups: Vec<GroupData> = match &model.levels {
-        Some(levels) => levels.iter().cloned().map(GroupData::new).collect(),
-        None => Vec::new(),
-    };
-    let mut seen_level = vec![false; groups.len()];
-    let mut index: HashMap<Vec<u8>, usize> = HashMap::new();
-    let mut last: Option<(Vec<u8>, usize)> = None;
-    let mut dropped: BTreeMap<DropReason, u64> = BTreeMap::new();
-    let mut domain_y = DomainErrors::default();
-    let mut domain_x = DomainErrors::default();
-    let mut record = csv::ByteRecord::new();
-    let mut rows_read: u64 = 0;
+/// The plan's reading of one record, shared by every part of the file.
+struct Sorter<'a> {
+    plan: &'a Plan,
+    columns: &'a [String],
+    layout: Layout,
+    missing: Vec<Vec<u8>>,
+    listed: Option<HashMap<Vec<u8>, usize>>,
+}
 
-    loop {
-        match csv.read_byte_record(&mut record) {
-            Ok(true) => {}
-            Ok(false) => break,
-            Err(e) => return Err(csv_error(e, rows_read + 1)),
+/// What one stretch of the file gave: its groups, drop counts and domain errors,
+/// with row numbers counted from the stretch's own first record.
+struct Part {
+    groups: Vec<GroupData>,
+    seen_level: Vec<bool>,
+    index: HashMap<Vec<u8>, usize>,
+    last: Option<(Vec<u8>, usize)>,
+    dropped: BTreeMap<DropReason, u64>,
+    domain_y: DomainErrors,
+    domain_x: DomainErrors,
+    rows_read: u64,
+}
+
+impl<'a> Sorter<'a> {
+    fn new(plan: &'a Plan, columns: &'a [String]) -> Result<Self, DataError> {
+        Ok(Sorter {
+            plan,
+            columns,
+            layout: layout(plan, columns)?,
+            missing: plan
+                .data
+                .missing
+                .iter()
+                .map(|m| m.trim().as_bytes().to_vec())
+                .collect(),
+            listed: plan.model.levels.as_ref().map(|levels| {
+                levels
+                    .iter()
+                    .enumerate()
+                    .map(|(i, l)| (l.as_bytes().to_vec(), i))
+                    .collect()
+            }),
+        })
+    }
+
+    /// An empty part: with `model.levels`, one group per level in their order.
+    fn part(&self) -> Part {
+        let groups: Vec<GroupData> = match &self.plan.model.levels {
+            Some(levels) => levels.iter().cloned().map(GroupData::new).collect(),
+            None => Vec::new(),
+        };
+        Part {
+            seen_level: vec![false; groups.len()],
+            groups,
+            index: HashMap::new(),
+            last: None,
+            dropped: BTreeMap::new(),
+            domain_y: DomainErrors::default(),
+            domain_x: DomainErrors::default(),
+            rows_read: 0,
         }
-        rows_read += 1;
-        let row = rows_read;
+    }
+
+    fn is_missing(&self, cell: &[u8]) -> bool {
+        self.missing.iter().any(|m| same_bytes(m, cell))
+    }
+
+    /// Reads every record `csv` has left into `part`. Rows in errors are the
+    /// reader's own (the caller shifts a later part's into place), lines the
+    /// parser's (the caller counts them afresh, see [`lines`]).
+    fn read<R: Read>(&self, csv: &mut csv::Reader<R>, part: &mut Part) -> Result<(), Located> {
+        let mut record = csv::ByteRecord::new();
+        loop {
+            match csv.read_byte_record(&mut record) {
+                Ok(true) => {}
+                Ok(false) => return Ok(()),
+                Err(e) => {
+                    let byte = e.position().map(|p| p.byte());
+                    let error = csv_error(e, part.rows_read + 1);
+                    return Err(Located { error, byte });
+                }
+            }
+            part.rows_read += 1;
+            self.take(&record, part).map_err(|error| Located {
+                error,
+                byte: record.position().map(|p| p.byte()),
+            })?;
+        }
+    }
+
+    /// Sorts one record into its group, or counts why it is left out.
+    #[inline]
+    fn take(&self, record: &csv::ByteRecord, part: &mut Part) -> Result<(), DataError> {
+        let columns = self.columns;
+        let layout = &self.layout;
+        let model = &self.plan.model;
+        let row = part.rows_read;
         let line = record.position().map_or(row + 1, |p| p.line());
+        if record.len() != columns.len() {
+            return Err(DataError::Ragged {
+                row,
+                line,
+                expected: columns.len(),
+                found: record.len(),
+            });
+        }
         let cell_at = |col: usize| CellAt {
             row,
             line,
@@ -209,78 +309,29 @@ pub fn load<R: Read>(plan: &Plan, reader: R) -> Result<Dataset, DataError> {
         };
         // Numeric cells skip the UTF-8 check on the fast path: a number is ASCII,
         // and a cell that fails to parse is checked before it is quoted.
-        let raw_cell = |col: usize| trim_ascii(&record[col]);
+        let raw_cell = |col: usize| record[col].trim_ascii();
 
-        let mut passes = true;
         for (col, accepted) in &layout.keep {
             let text = cell(*col)?;
-            if !accepted.iter().any(|a| a.as_slice() == text) {
-                passes = false;
-                break;
+            if !accepted.iter().any(|a| same_bytes(a, text)) {
+                *part.dropped.entry(DropReason::FilteredOut).or_default() += 1;
+                return Ok(());
             }
-        }
-        if !passes {
-            *dropped.entry(DropReason::FilteredOut).or_default() += 1;
-            continue;
         }
 
         let label = cell(layout.group)?;
-        let group_missing = is_missing(label);
-        let mut slot = None;
-        if !group_missing {
-            slot = Some(match &last {
-                Some((l, i)) if l.as_slice() == label => *i,
-                _ => {
-                    let known = (groups.len() <= LINEAR_LOOKUP)
-                        .then(|| groups.iter().position(|g| g.level.as_bytes() == label))
-                        .flatten();
-                    let i = match (&listed, known) {
-                        (_, Some(i)) => i,
-                        (Some(map), None) => match map.get(label) {
-                            Some(i) => *i,
-                            None => {
-                                let label = String::from_utf8_lossy(label).into_owned();
-                                let levels = model.levels.as_deref().unwrap_or_default();
-                                let near = did_you_mean(&label, levels.iter().map(String::as_str))
-                                    .and_then(|l| {
-                                        levels
-                                            .iter()
-                                            .position(|x| x == l)
-                                            .map(|i| (i, l.to_string()))
-                                    });
-                                return Err(DataError::UnlistedLevel {
-                                    row,
-                                    line,
-                                    label,
-                                    column: model.group.clone(),
-                                    near,
-                                });
-                            }
-                        },
-                        (None, None) => match index.get(label) {
-                            Some(i) => *i,
-                            None => {
-                                let i = groups.len();
-                                let text = String::from_utf8_lossy(label).into_owned();
-                                groups.push(GroupData::new(text));
-                                seen_level.push(false);
-                                index.insert(label.to_vec(), i);
-                                i
-                            }
-                        },
-                    };
-                    last = Some((label.to_vec(), i));
-                    i
-                }
-            });
-            seen_level[slot.unwrap_or_default()] = true;
-        }
+        let group_missing = self.is_missing(label);
+        let slot = if group_missing {
+            None
+        } else {
+            Some(self.slot(label, row, line, part)?)
+        };
 
         let y_text = raw_cell(layout.response);
         let x_text = raw_cell(layout.covariate);
-        let reason = if is_missing(y_text) {
+        let reason = if self.is_missing(y_text) {
             Some(DropReason::MissingResponse)
-        } else if is_missing(x_text) {
+        } else if self.is_missing(x_text) {
             Some(DropReason::MissingCovariate)
         } else if group_missing {
             Some(DropReason::MissingGroup)
@@ -288,43 +339,157 @@ pub fn load<R: Read>(plan: &Plan, reader: R) -> Result<Dataset, DataError> {
             None
         };
         if let Some(reason) = reason {
-            *dropped.entry(reason).or_default() += 1;
-            continue;
+            *part.dropped.entry(reason).or_default() += 1;
+            return Ok(());
         }
         let y_raw = number(y_text, || cell_at(layout.response))?;
         let x_raw = number(x_text, || cell_at(layout.covariate))?;
-        let y = domain_y.apply(model.response_transform, y_raw, row);
-        let x = domain_x.apply(model.covariate_transform, x_raw, row);
+        let y = part.domain_y.apply(model.response_transform, y_raw, row);
+        let x = part.domain_x.apply(model.covariate_transform, x_raw, row);
         if let (Some(x), Some(y), Some(g)) = (x, y, slot) {
-            let row32 = u32::try_from(row).map_err(|_| DataError::TooManyRows {
-                max: u64::from(u32::MAX),
-            })?;
-            groups[g].push(row32, x, y);
+            let row32 = u32::try_from(row).map_err(|_| too_many_rows())?;
+            part.groups[g].push(row32, x, y);
+        }
+        Ok(())
+    }
+
+    /// The group a label belongs to, created on first sight unless `levels` lists
+    /// the groups. Consecutive rows of one group skip the lookup.
+    fn slot(&self, label: &[u8], row: u64, line: u64, part: &mut Part) -> Result<usize, DataError> {
+        if let Some((l, i)) = &part.last {
+            if same_bytes(l, label) {
+                part.seen_level[*i] = true;
+                return Ok(*i);
+            }
+        }
+        let known = (part.groups.len() <= LINEAR_LOOKUP)
+            .then(|| {
+                part.groups
+                    .iter()
+                    .position(|g| same_bytes(g.level.as_bytes(), label))
+            })
+            .flatten();
+        let i = match (&self.listed, known) {
+            (_, Some(i)) => i,
+            (Some(map), None) => match map.get(label) {
+                Some(i) => *i,
+                None => return Err(self.unlisted(label, row, line)),
+            },
+            (None, None) => match part.index.get(label) {
+                Some(i) => *i,
+                None => part.add_group(label),
+            },
+        };
+        part.last = Some((label.to_vec(), i));
+        part.seen_level[i] = true;
+        Ok(i)
+    }
+
+    fn unlisted(&self, label: &[u8], row: u64, line: u64) -> DataError {
+        let model = &self.plan.model;
+        let label = String::from_utf8_lossy(label).into_owned();
+        let levels = model.levels.as_deref().unwrap_or_default();
+        let near = did_you_mean(&label, levels.iter().map(String::as_str)).and_then(|l| {
+            levels
+                .iter()
+                .position(|x| x == l)
+                .map(|i| (i, l.to_string()))
+        });
+        DataError::UnlistedLevel {
+            row,
+            line,
+            label,
+            column: model.group.clone(),
+            near,
         }
     }
 
-    if rows_read == 0 {
-        return Err(DataError::NoRows);
-    }
-    domain_y.check(&model.response, model.response_transform)?;
-    domain_x.check(&model.covariate, model.covariate_transform)?;
-    if let Some(levels) = &model.levels {
-        if let Some(i) = seen_level.iter().position(|seen| !seen) {
-            return Err(DataError::AbsentLevel {
-                level: levels[i].clone(),
-                index: i,
-                column: model.group.clone(),
-            });
+    /// The dataset from the whole file's part: domain and level checks, group order.
+    fn finish(&self, part: Part) -> Result<Dataset, DataError> {
+        let model = &self.plan.model;
+        let Part {
+            mut groups,
+            seen_level,
+            dropped,
+            domain_y,
+            domain_x,
+            rows_read,
+            ..
+        } = part;
+        if rows_read == 0 {
+            return Err(DataError::NoRows);
         }
-    } else {
-        groups.sort_by(|a, b| a.level.cmp(&b.level));
+        domain_y.check(&model.response, model.response_transform)?;
+        domain_x.check(&model.covariate, model.covariate_transform)?;
+        if let Some(levels) = &model.levels {
+            if let Some(i) = seen_level.iter().position(|seen| !seen) {
+                return Err(DataError::AbsentLevel {
+                    level: levels[i].clone(),
+                    index: i,
+                    column: model.group.clone(),
+                });
+            }
+        } else {
+            groups.sort_by(|a, b| a.level.cmp(&b.level));
+        }
+        Ok(Dataset {
+            columns: self.columns.to_vec(),
+            rows_read,
+            dropped,
+            groups,
+        })
     }
-    Ok(Dataset {
-        columns,
-        rows_read,
-        dropped,
-        groups,
-    })
+}
+
+impl Part {
+    fn add_group(&mut self, label: &[u8]) -> usize {
+        let i = self.groups.len();
+        self.groups
+            .push(GroupData::new(String::from_utf8_lossy(label).into_owned()));
+        self.seen_level.push(false);
+        self.index.insert(label.to_vec(), i);
+        i
+    }
+
+    /// Appends the part that follows this one in the file, whose rows are numbered
+    /// from its own start.
+    fn append(&mut self, later: Part) -> Result<(), DataError> {
+        let shift = self.rows_read;
+        let last_row = shift + later.rows_read;
+        if last_row > u64::from(u32::MAX) {
+            return Err(too_many_rows());
+        }
+        for (g, seen) in later.groups.into_iter().zip(later.seen_level) {
+            let i = match self.index.get(g.level.as_bytes()) {
+                Some(i) => *i,
+                None => match self.groups.iter().position(|h| h.level == g.level) {
+                    Some(i) => i,
+                    None => self.add_group(g.level.as_bytes()),
+                },
+            };
+            self.seen_level[i] |= seen;
+            self.groups[i].append(g, shift as u32);
+        }
+        for (reason, n) in later.dropped {
+            *self.dropped.entry(reason).or_default() += n;
+        }
+        self.domain_y.append(later.domain_y, shift);
+        self.domain_x.append(later.domain_x, shift);
+        self.rows_read = last_row;
+        Ok(())
+    }
+}
+
+fn too_many_rows() -> DataError {
+    DataError::TooManyRows {
+        max: u64::from(u32::MAX),
+    }
+}
+
+/// Byte equality written out for short cells: faster here than a call to memcmp.
+#[inline]
+fn same_bytes(a: &[u8], b: &[u8]) -> bool {
+    a.len() == b.len() && a.iter().zip(b).all(|(x, y)| x == y)
 }
 
 /// A header cell without the UTF-8 byte-order mark some programs put before the
@@ -405,10 +570,6 @@ fn layout(plan: &Plan, columns: &[String]) -> Result<Layout, DataError> {
 /// Groups up to this many are found by comparing labels, faster than hashing.
 const LINEAR_LOOKUP: usize = 16;
 
-fn trim_ascii(bytes: &[u8]) -> &[u8] {
-    bytes.trim_ascii()
-}
-
 /// Parses a numeric cell (Eisel–Lemire via fast-float2; the whole cell must be a
 /// number).
 fn number(text: &[u8], at: impl Fn() -> CellAt) -> Result<f64, DataError> {
@@ -468,6 +629,19 @@ impl DomainErrors {
             }
         }
         out
+    }
+
+    /// Adds a later part's errors, its rows shifted by `rows_before`.
+    fn append(&mut self, later: DomainErrors, rows_before: u64) {
+        self.count += later.count;
+        let room = MAX_DOMAIN_ROWS.saturating_sub(self.rows.len());
+        self.rows.extend(
+            later
+                .rows
+                .into_iter()
+                .take(room)
+                .map(|(r, v)| (r + rows_before, v)),
+        );
     }
 
     fn check(&self, column: &str, transform: Transform) -> Result<(), DataError> {

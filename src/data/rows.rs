@@ -36,6 +36,26 @@ impl RowNumbers {
         self.last = row;
     }
 
+    /// Moves a later part's row numbers onto the end, each `shift` higher (its
+    /// rows were numbered from its own start). Only the first step is re-coded.
+    pub fn append(&mut self, mut later: RowNumbers, shift: u32) {
+        let Some(first) = later.steps.first_mut() else {
+            return;
+        };
+        // The first step counts from the later part's row 0; as an absolute row
+        // in the wide list it needs no step from `self.last`.
+        if *first != WIDE {
+            later.wide.insert(0, u32::from(*first));
+            *first = WIDE;
+        }
+        for row in &mut later.wide {
+            *row += shift;
+        }
+        self.steps.append(later.steps);
+        self.wide.append(&mut later.wide);
+        self.last = later.last + shift;
+    }
+
     /// Number of rows.
     pub fn len(&self) -> usize {
         self.steps.len()
@@ -100,5 +120,25 @@ mod tests {
         // Row 0 never occurs (rows are 1-based), but a first row of 255 is wide.
         let r: RowNumbers = [255u32, 509].into_iter().collect();
         assert_eq!(r.to_vec(), vec![255, 509]);
+    }
+
+    #[test]
+    fn appended_parts_read_as_one() {
+        let cases: [(&[u32], &[u32], u32); 4] = [
+            (&[1, 2, 300], &[1, 5, 1000], 400),
+            (&[], &[3, 4], 10),
+            (&[7], &[], 10),
+            (&[1, 2], &[300, 301], 2),
+        ];
+        for (a, b, shift) in cases {
+            let mut r: RowNumbers = a.iter().copied().collect();
+            r.append(b.iter().copied().collect(), shift);
+            r.push(shift + 5000);
+            let mut want: Vec<u32> = a.to_vec();
+            want.extend(b.iter().map(|x| x + shift));
+            want.push(shift + 5000);
+            assert_eq!(r.to_vec(), want, "{a:?} then {b:?} + {shift}");
+            assert_eq!(r.len(), want.len());
+        }
     }
 }

@@ -244,3 +244,33 @@ fn bytes_that_are_not_utf8_name_row_and_column() {
         "data row 2 (file line 3), column `x` (column 2) is not valid UTF-8 text"
     );
 }
+
+#[test]
+fn file_lines_count_blank_lines_and_every_line_end_style() {
+    // The CSV parser's own count is off after blank lines and with CRLF; the loader
+    // counts the line from the bytes (common practice, no source: a line ends at
+    // LF, CRLF or a lone CR).
+    let plan = plan_with("", "");
+    for text in [
+        "g,x,y\na,1,1\n\n\nb,bad,2\n",
+        "g,x,y\r\na,1,1\r\n\r\n\r\nb,bad,2\r\n",
+        "g,x,y\ra,1,1\r\r\rb,bad,2\r",
+        "g,x,y\n\"a\n\n\",1,1\nb,bad,2\n",
+    ] {
+        let e = load_str(&plan, text).unwrap_err().to_string();
+        assert!(
+            e.starts_with("data row 2 (file line 5), column `x`"),
+            "{text:?}: {e}"
+        );
+    }
+    let e = load_str(&plan, "g,x,y\r\na,1,1\r\n\r\nb,1\r\n").unwrap_err();
+    assert_eq!(
+        e,
+        DataError::Ragged {
+            row: 2,
+            line: 4,
+            expected: 3,
+            found: 2
+        }
+    );
+}

@@ -1,0 +1,387 @@
+//! Reading a large file in two halves at once, one per core.
+//!
+//! Parsing is most of a run's time on large files, and the machines this tool runs on
+//! have at least two cores. The file is cut at the first line end after its middle;
+//! the first half is read on the calling thread (header included), the second on
+//! another, and the two parts are joined in file order. Row numbers and byte
+//! offsets in the second part count from its own start and are shifted when it is
+//! joined, so every row number, line number and error is the one a single pass
+//! would give.
+//!
+//! A line end is a record boundary only outside quoted fields. Both halves watch
+//! their bytes for the quote character; if either holds one after the header, the
+//! halves stop, are dropped, and the file is read again in one pass. The cut depends only on the
+//! file's bytes, so the same file gives the same results on every run.
+
+use std::io::{self, Read, Seek, SeekFrom};
+
+use super::{DataError, Dataset, Located, Part, Sorter, csv_reader, one_pass, read_header};
+use crate::plan::Plan;
+
+/// Files smaller than this are read in one pass: below it a second thread costs
+/// more than it saves.
+pub const PARALLEL_MIN_BYTES: u64 = 1 << 20;
+
+/// How far past the middle the cut looks for a line end before giving up.
+const CUT_SEARCH: usize = 1 << 16;
+
+/// Reads the CSV that `open` opens (`len` bytes long); a file of at least
+/// `min_bytes` is read in two halves on two threads (see the module notes). Either
+/// way the answer, errors included, is that of one pass over the same bytes.
+pub fn load_seekable<R, F>(
+    plan: &Plan,
+    len: u64,
+    min_bytes: u64,
+    open: F,
+) -> Result<Dataset, DataError>
+where
+    R: Read + Seek + Send,
+    F: Fn() -> io::Result<R> + Sync,
+{
+    let io = |e: io::Error| DataError::Io(e.to_string());
+    let cut = if len >= min_bytes.max(2) {
+        find_cut(open().map_err(io)?, len).map_err(io)?
+    } else {
+        None
+    };
+    let read = match cut {
+        Some(cut) => in_halves(plan, cut, &open),
+        None => None,
+    };
+    let read = match read {
+        Some(read) => read,
+        None => one_pass(plan, open().map_err(io)?),
+    };
+    read.map_err(|e| e.resolve(open()))
+}
+
+/// The two-thread reading, cut at byte `cut`; `None` when a quote character makes
+/// the cut unsafe and the file must be read in one pass.
+fn in_halves<R, F>(plan: &Plan, cut: u64, open: &F) -> Option<Result<Dataset, Located>>
+where
+    R: Read + Seek + Send,
+    F: Fn() -> io::Result<R> + Sync,
+{
+    let io = |e: io::Error| Located::from(DataError::Io(e.to_string()));
+    let first = match open() {
+        Ok(file) => Scanning::new(file.take(cut)),
+        Err(e) => return Some(Err(io(e))),
+    };
+    let mut csv = csv_reader(plan, true, first);
+    let columns = match read_header(&mut csv) {
+        Ok(columns) => columns,
+        Err(e) => return Some(Err(e.into())),
+    };
+    // Quotes in the header do not matter: the cut comes after it.
+    csv.get_mut().watch_from = csv.position().byte();
+    let sorter = match Sorter::new(plan, &columns) {
+        Ok(sorter) => sorter,
+        Err(e) => return Some(Err(e.into())),
+    };
+    let (first, second) = std::thread::scope(|scope| {
+        let second = scope.spawn(|| -> Result<Half<R>, Located> {
+            let mut file = open().map_err(io)?;
+            file.seek(SeekFrom::Start(cut)).map_err(io)?;
+            let mut csv = csv_reader(plan, false, Scanning::new(file));
+            let mut part = sorter.part();
+            let read = sorter.read(&mut csv, &mut part);
+            Ok(Half {
+                read,
+                part,
+                scan: csv.into_inner(),
+            })
+        });
+        let mut part = sorter.part();
+        let read = sorter.read(&mut csv, &mut part);
+        let first = Half {
+            read,
+            part,
+            scan: csv.into_inner(),
+        };
+        let second = second
+            .join()
+            .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
+        (first, second)
+    });
+
+    // Without quotes the first half reads exactly as one pass would up to the cut,
+    // so its own error stands whatever the second half holds.
+    if !first.scan.quoted() {
+        if let Err(e) = first.read {
+            return Some(Err(e));
+        }
+    }
+    let second = match second {
+        Ok(second) => second,
+        Err(e) => return Some(Err(e)),
+    };
+    if first.scan.quoted() || second.scan.quoted() {
+        return None;
+    }
+    let mut part = first.part;
+    if let Err(e) = second.read {
+        return Some(Err(Located {
+            error: e.error.shifted(part.rows_read),
+            byte: e.byte.map(|b| b + cut),
+        }));
+    }
+    Some(
+        part.append(second.part)
+            .and_then(|()| sorter.finish(part))
+            .map_err(Located::from),
+    )
+}
+
+/// One half as read: how the reading ended, what it gave, what passed the scanner.
+struct Half<R> {
+    read: Result<(), Located>,
+    part: Part,
+    scan: Scanning<R>,
+}
+
+/// The byte offset just past the first line end at or after the middle of the file,
+/// or `None` when there is none within reach or it would leave the second half empty.
+fn find_cut<R: Read + Seek>(mut file: R, len: u64) -> io::Result<Option<u64>> {
+    let middle = len / 2;
+    file.seek(SeekFrom::Start(middle))?;
+    let mut buf = vec![0u8; CUT_SEARCH];
+    let mut filled = 0;
+    while filled < buf.len() {
+        let n = file.read(&mut buf[filled..])?;
+        if n == 0 {
+            break;
+        }
+        filled += n;
+    }
+    let cut = buf[..filled]
+        .iter()
+        .position(|&b| b == b'\n')
+        .map(|i| middle + i as u64 + 1)
+        .filter(|&cut| cut < len);
+    Ok(cut)
+}
+
+/// A reader that watches its bytes for the quote character. Once it has seen one
+/// at or after `watch_from` it reports the end of its input, so a reading that must
+/// be redone in one pass stops early.
+struct Scanning<R> {
+    inner: R,
+    /// Bytes passed so far.
+    pos: u64,
+    /// Offset from which a quote counts (the first half's header may hold quotes).
+    watch_from: u64,
+    /// Offset of the last quote seen.
+    last_quote: Option<u64>,
+}
+
+impl<R> Scanning<R> {
+    fn new(inner: R) -> Self {
+        Scanning {
+            inner,
+            pos: 0,
+            watch_from: 0,
+            last_quote: None,
+        }
+    }
+
+    /// True when a quote was seen where it counts.
+    fn quoted(&self) -> bool {
+        self.last_quote.is_some_and(|q| q >= self.watch_from)
+    }
+}
+
+impl<R: Read> Read for Scanning<R> {
+    fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
+        if self.quoted() {
+            return Ok(0);
+        }
+        let n = self.inner.read(buf)?;
+        if let Some(i) = buf[..n].iter().rposition(|&b| b == b'"') {
+            self.last_quote = Some(self.pos + i as u64);
+        }
+        self.pos += n as u64;
+        Ok(n)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::plan;
+    use std::io::Cursor;
+
+    fn plan_with(extra_model: &str, extra_data: &str) -> Plan {
+        let text = format!(
+            "title = \"t\"\n[data]\npath = \"d.csv\"\nmissing = [\"\", \"NA\"]\n{extra_data}\n[model]\nresponse = \"y\"\ncovariate = \"x\"\ngroup = \"g\"\n{extra_model}\n"
+        );
+        plan::load("p.toml", &text).unwrap()
+    }
+
+    /// Reads `csv` in two halves whatever its size.
+    fn in_halves(plan: &Plan, csv: &str) -> Result<Dataset, DataError> {
+        let bytes = csv.as_bytes().to_vec();
+        load_seekable(plan, bytes.len() as u64, 0, || {
+            Ok(Cursor::new(bytes.clone()))
+        })
+    }
+
+    /// The two readings agree: same rows, groups and values, moments to rounding.
+    fn assert_same(plan: &Plan, csv: &str) {
+        let one = one_pass(plan, csv.as_bytes()).map_err(|e| e.resolve(Ok(csv.as_bytes())));
+        let two = in_halves(plan, csv);
+        match (one, two) {
+            (Err(a), Err(b)) => assert_eq!(a, b, "errors differ for\n{csv}"),
+            (Ok(a), Ok(b)) => {
+                assert_eq!(a.rows_read, b.rows_read);
+                assert_eq!(a.dropped, b.dropped);
+                assert_eq!(a.columns, b.columns);
+                assert_eq!(a.groups.len(), b.groups.len());
+                for (g, h) in a.groups.iter().zip(&b.groups) {
+                    assert_eq!(g.level, h.level);
+                    assert_eq!(g.x.to_vec(), h.x.to_vec());
+                    assert_eq!(g.y.to_vec(), h.y.to_vec());
+                    assert_eq!(g.rows.to_vec(), h.rows.to_vec());
+                    let (m, n) = (g.moments, h.moments);
+                    assert_eq!(m.n, n.n);
+                    for (u, v) in [
+                        (m.mean_x, n.mean_x),
+                        (m.sxx, n.sxx),
+                        (m.sxy, n.sxy),
+                        (m.syy, n.syy),
+                    ] {
+                        assert!((u - v).abs() <= 1e-12 * u.abs().max(1.0), "{u} vs {v}");
+                    }
+                    assert_eq!((m.min_x, m.max_x), (n.min_x, n.max_x));
+                }
+            }
+            (a, b) => panic!("one reading failed, the other not:\n{a:?}\n{b:?}\nfor\n{csv}"),
+        }
+    }
+
+    /// `rows` data rows over groups a, b, c with one line each; `row_text` may
+    /// replace a row's text.
+    fn csv(rows: usize, row_text: impl Fn(usize) -> Option<String>) -> String {
+        let mut s = String::from("g,x,y\n");
+        for i in 1..=rows {
+            let line = row_text(i).unwrap_or_else(|| {
+                let g = ["a", "b", "c"][i % 3];
+                format!("{g},{},{}", i as f64 * 0.5, 3.0 + i as f64 * 0.25)
+            });
+            s.push_str(&line);
+            s.push('\n');
+        }
+        s
+    }
+
+    #[test]
+    fn halves_give_the_one_pass_dataset() {
+        let plan = plan_with("", "");
+        assert_same(&plan, &csv(40, |_| None));
+        // Drops of every kind on both sides of the middle, and a group seen only
+        // in the second half.
+        assert_same(
+            &plan,
+            &csv(40, |i| match i {
+                3 | 33 => Some("a,NA,1".into()),
+                5 | 35 => Some("b,1,".into()),
+                7 | 37 => Some(",1,1".into()),
+                30..=32 => Some(format!("late,{i},{}", i * 2)),
+                _ => None,
+            }),
+        );
+        // Row numbers more than 255 apart within a group, across the cut.
+        assert_same(
+            &plan,
+            &csv(900, |i| (i % 300 != 0).then(|| format!("b,{i},{i}"))),
+        );
+        let listed = plan_with("levels = [\"c\", \"b\", \"a\"]", "");
+        assert_same(&listed, &csv(40, |_| None));
+        let kept = plan_with(
+            "",
+            "[[data.keep]]\ncolumn = \"g\"\none_of = [\"a\", \"c\"]\n",
+        );
+        assert_same(&kept, &csv(40, |_| None));
+    }
+
+    #[test]
+    fn errors_in_the_second_half_name_the_rows_a_single_pass_names() {
+        let plan = plan_with("", "");
+        for bad in ["a,oops,1", "a,1", "a,1,1,1", "a,inf,2"] {
+            let text = csv(40, |i| (i == 31).then(|| bad.to_string()));
+            assert_same(&plan, &text);
+            let e = in_halves(&plan, &text).unwrap_err().to_string();
+            assert!(e.contains("data row 31 (file line 32)"), "{e}");
+        }
+        let listed = plan_with("levels = [\"a\", \"b\", \"c\"]", "");
+        assert_same(
+            &listed,
+            &csv(40, |i| (i == 36).then(|| "d,1,1".to_string())),
+        );
+        // The first error in the file wins, wherever the other is.
+        assert_same(
+            &plan,
+            &csv(40, |i| match i {
+                4 => Some("a,x1,1".into()),
+                36 => Some("a,1".into()),
+                _ => None,
+            }),
+        );
+        // Blank lines and CRLF line ends before the cut shift the file lines.
+        let blank = csv(40, |i| match i {
+            3 => Some("a,1,1\n\n".into()), // two blank lines follow
+            35 => Some("c,bad,1".into()),
+            _ => None,
+        });
+        for text in [blank.clone(), blank.replace('\n', "\r\n")] {
+            assert_same(&plan, &text);
+            let e = in_halves(&plan, &text).unwrap_err().to_string();
+            assert!(e.contains("data row 35 (file line 38)"), "{e}");
+        }
+    }
+
+    #[test]
+    fn domain_errors_collect_from_both_halves() {
+        let plan = plan_with("[model.transform]\nresponse = \"log\"", "");
+        let text = csv(40, |i| {
+            matches!(i, 2 | 30 | 31 | 32 | 33 | 34 | 39).then(|| format!("a,1,-{i}"))
+        });
+        assert_same(&plan, &text);
+        match in_halves(&plan, &text).unwrap_err() {
+            DataError::OutsideDomain { count, rows, .. } => {
+                assert_eq!(count, 7);
+                assert_eq!(
+                    rows.iter().map(|r| r.0).collect::<Vec<_>>(),
+                    [2, 30, 31, 32, 33]
+                );
+            }
+            other => panic!("{other:?}"),
+        }
+    }
+
+    #[test]
+    fn quotes_anywhere_mean_one_pass() {
+        let plan = plan_with("", "");
+        // A quoted field holding a line end right where the cut would fall.
+        for at in [2, 19, 20, 21, 39] {
+            let text = csv(40, |i| (i == at).then(|| "\"a\",\"1\n\",2".to_string()));
+            let text = text.replace("\"1\n\"", "\"1\"\n");
+            assert_same(&plan, &text);
+            let spanning = csv(40, |i| (i == at).then(|| "\"b\nb\",1,2".to_string()));
+            assert_same(&plan, &spanning);
+        }
+    }
+
+    #[test]
+    fn small_files_and_files_without_a_late_line_end_read_in_one_pass() {
+        let plan = plan_with("", "");
+        assert_same(&plan, "g,x,y\na,1,2\n");
+        assert_same(&plan, "g,x,y\na,1,2\nb,2,3");
+        assert_same(&plan, "g,x,y\n");
+        assert_same(&plan, "");
+        let d = load_seekable(&plan, 20, 1 << 20, || {
+            Ok(Cursor::new(b"g,x,y\na,1,2\n".to_vec()))
+        })
+        .unwrap();
+        assert_eq!(d.rows_read, 1);
+    }
+}
