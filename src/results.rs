@@ -474,24 +474,6 @@ pub struct Influence {
     pub flagged: Vec<FlaggedRow>,
 }
 
-impl Influence {
-    /// An empty summary, filled in once the model is selected.
-    pub fn placeholder() -> Influence {
-        Influence {
-            model: String::new(),
-            max_cooks_distance: None,
-            max_leverage: None,
-            cutoffs: InfluenceCutoffs {
-                leverage: 0.0,
-                cooks_distance: 0.0,
-                studentized_residual: 0.0,
-            },
-            flagged_total: 0,
-            flagged: Vec::new(),
-        }
-    }
-}
-
 /// Cut-offs for flagging rows (common practice).
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct InfluenceCutoffs {

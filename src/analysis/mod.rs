@@ -28,8 +28,8 @@ use crate::data::{Dataset, GroupData};
 use crate::fit::{CommonSlopeFit, GroupLine, OneLineFit, SeparateFit};
 use crate::plan::{AdjustAt, Plan};
 use crate::results::{
-    Checks, DataAccount, EffectSizes, FigurePoints, GroupPoints, Influence, ModelEcho, ModelFit,
-    OneLine, Provenance, Results,
+    Checks, DataAccount, EffectSizes, FigurePoints, GroupPoints, ModelEcho, ModelFit, OneLine,
+    Provenance, Results,
 };
 use crate::stats::dist::t_quantile;
 use crate::stats::quantile::quantiles;
@@ -220,16 +220,29 @@ fn procedure(
         group_effect_partial_eta2: partial_eta2(one.line.rss - common.rss, common.rss),
     };
 
+    // The residual checks and the influence measures each take a few passes over
+    // every row and share nothing, so they run on two cores. Warnings keep the
+    // order a single thread would give them.
+    let ((normality, equal_variance, check_warnings), (influence, flagged)) =
+        std::thread::scope(|scope| {
+            let residual_checks = scope.spawn(|| {
+                let mut w = Vec::new();
+                let normality = checks::normality(&eligible.groups, separate, &mut w);
+                let equal_variance = checks::equal_variance(&eligible.groups, separate, &mut w);
+                (normality, equal_variance, w)
+            });
+            let influence = fits.selected(&eligible.groups, homogeneous).summarize();
+            let residual_checks = residual_checks
+                .join()
+                .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
+            (residual_checks, influence)
+        });
+    warnings.extend(check_warnings);
     let checks = Checks {
-        normality: checks::normality(&eligible.groups, separate, &mut warnings),
-        equal_variance: checks::equal_variance(&eligible.groups, separate, &mut warnings),
+        normality,
+        equal_variance,
         covariate_balance: checks::covariate_balance(&moments, &mut warnings),
-        influence: Influence::placeholder(),
-    };
-    let (influence, flagged) = fits.selected(&eligible.groups, homogeneous).summarize();
-    let checks = Checks {
         influence,
-        ..checks
     };
 
     let (regions, differences_at) = if homogeneous {
