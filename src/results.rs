@@ -8,6 +8,9 @@
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 
+mod finite;
+pub use finite::first_non_finite;
+
 /// Everything a run found.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Results {

@@ -23,6 +23,14 @@ pub enum AnalysisError {
         /// The largest absolute value, or the smallest spread.
         magnitude: f64,
     },
+    /// A number came out NaN or infinite: a defect, caught before anything is written.
+    #[error(
+        "slopewise computed a non-finite number for `{path}`, which it must never report; no report was written"
+    )]
+    NonFinite {
+        /// Where in the results (as in results.json).
+        path: String,
+    },
 }
 
 fn too_few(usable: &[String], excluded: &[(String, String)]) -> String {
@@ -55,6 +63,8 @@ impl AnalysisError {
             ),
             AnalysisError::Magnitude { .. } => Diagnostic::new(self.to_string())
                 .help("express the column in other units (for example divide by 1e200), or use a log transform"),
+            AnalysisError::NonFinite { .. } => Diagnostic::new(self.to_string())
+                .help("this is a defect in slopewise: please report it with the plan and the data file"),
         }
     }
 }

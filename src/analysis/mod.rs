@@ -40,6 +40,11 @@ pub fn run(plan: &Plan, data: &Dataset, provenance: Provenance) -> Result<Result
     if plan.checks.sensitivity {
         sensitivity::attach(plan, data, &flagged, &mut results);
     }
+    // A statistic that cannot be computed is null with a warning; a NaN that got
+    // past that is a defect, and no report must carry it (JSON would show null).
+    if let Some(path) = crate::results::first_non_finite(&results) {
+        return Err(AnalysisError::NonFinite { path });
+    }
     Ok(results)
 }
 
