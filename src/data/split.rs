@@ -68,12 +68,17 @@ where
         Err(e) => return Some(Err(io(e))),
     };
     let mut csv = csv_reader(plan, true, first);
-    let columns = match read_header(&mut csv) {
-        Ok(columns) => columns,
-        Err(e) => return Some(Err(e.into())),
+    // A header that reaches the cut (a quoted name holding line ends) was cut
+    // short, and its error may be the cut's doing: one pass reads it whole. A
+    // header that ends before the cut reads as in one pass, quotes and all, so
+    // quotes count only after it.
+    let columns = read_header(&mut csv);
+    let header_end = csv.position().byte();
+    let columns = match columns {
+        Ok(columns) if header_end < cut => columns,
+        _ => return None,
     };
-    // Quotes in the header do not matter: the cut comes after it.
-    csv.get_mut().watch_from = csv.position().byte();
+    csv.get_mut().watch_from = header_end;
     let sorter = match Sorter::new(plan, &columns) {
         Ok(sorter) => sorter,
         Err(e) => return Some(Err(e.into())),
@@ -369,6 +374,37 @@ mod tests {
             let spanning = csv(40, |i| (i == at).then(|| "\"b\nb\",1,2".to_string()));
             assert_same(&plan, &spanning);
         }
+    }
+
+    #[test]
+    fn a_quoted_header_reaching_past_the_middle_means_one_pass() {
+        // Found by the csv_load fuzz target: the header's open quote swallows the
+        // whole file, so the first half's header was cut short.
+        let plan = plan_with("", "");
+        let text = "g,\"\"\"x,y\na,0.676e-250,3.375e-250\nb,1.327e-250,5.405e-250\nc,5.063e-250,17.126e-250\naa,4.262e-250,6.481e-250\nb,3.835e-250,9.367e-250\n";
+        assert_same(&plan, text);
+        match in_halves(&plan, text).unwrap_err() {
+            DataError::MissingColumn { available, .. } => {
+                assert_eq!(available.len(), 2);
+                assert!(available[1].ends_with("9.367e-250"), "{available:?}");
+            }
+            other => panic!("{other:?}"),
+        }
+        // Found by the same target: bytes that are not UTF-8 in a header that
+        // reaches past the middle name the whole header, as in one pass.
+        let mut bytes = b"\"ta,,\tg39\0,,\xd4\xcc,".to_vec();
+        bytes.extend([0u8; 60]);
+        bytes.extend(b"\\\\,,,\0A\xff\x07\ny");
+        let one = one_pass(&plan, bytes.as_slice()).map_err(|e| e.resolve(Ok(bytes.as_slice())));
+        let two = load_seekable(&plan, bytes.len() as u64, 0, || {
+            Ok(Cursor::new(bytes.clone()))
+        });
+        assert_eq!(one.unwrap_err(), two.unwrap_err());
+        // Quotes in a header that ends before the middle keep the two halves.
+        assert_same(
+            &plan,
+            &csv(40, |_| None).replacen("g,x,y", "\"g\",\"x\",\"y\"", 1),
+        );
     }
 
     #[test]
