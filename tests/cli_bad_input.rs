@@ -813,3 +813,45 @@ fn several_plans_with_the_same_stem_are_refused() {
         .stderr_has(&["a/p.toml", "b/p.toml"])
         .run();
 }
+
+#[test]
+fn more_than_two_hundred_groups_run_with_tables_cut_and_no_nan() {
+    // Invented data: 210 plots of four leaves each, the same slope, shifted levels.
+    let mut data = String::from("plot,length_cm,mass_g\n");
+    for g in 0..210 {
+        for (i, e) in [0.03, -0.02, 0.01, -0.04].iter().enumerate() {
+            let x = 4.0 + 2.0 * i as f64;
+            data.push_str(&format!(
+                "p{g:03},{x},{}\n",
+                0.5 + 0.01 * g as f64 + 0.25 * x + e
+            ));
+        }
+    }
+    let out = Test::new("many_groups")
+        .plan(BASE_PLAN)
+        .data(&data)
+        .succeeds()
+        .run();
+    let r = out.json("out/results.json");
+    let pairs = 210 * 209 / 2;
+    assert_eq!(r["groups"].as_array().map(Vec::len), Some(210));
+    assert_eq!(r["pairwise_slopes"].as_array().map(Vec::len), Some(pairs));
+    let warnings = r["warnings"].as_array().expect("warnings is a list");
+    assert!(
+        warnings
+            .iter()
+            .any(|w| w.as_str().is_some_and(|w| w.starts_with(
+                "Tukey–Kramer p-values are left out (null): with 210 groups there are 21945 pairs"
+            ))),
+        "{warnings:?}"
+    );
+    let report = out.read("out/report.md");
+    let cut = format!("The first 200 of {pairs} rows are shown; results.json holds them all.");
+    assert!(report.contains(&cut), "no cut note in the report");
+    for text in [report.as_str(), out.read("out/results.json").as_str()] {
+        assert!(
+            !text.contains("NaN") && !text.contains('∞'),
+            "a non-finite number"
+        );
+    }
+}
