@@ -138,7 +138,12 @@ pub(crate) fn welch(
     let v = va + vb;
     let se = v.sqrt();
     let t = ratio(difference, Some(se));
-    let df = (v > 0.0).then(|| v * v / (va * va / df_a + vb * vb / df_b));
+    // Scaled by the larger variance: squaring a variance of 1e225 would overflow.
+    let m = va.max(vb);
+    let df = (v > 0.0).then(|| {
+        let (a, b) = (va / m, vb / m);
+        (a + b) * (a + b) / (a * a / df_a + b * b / df_b)
+    });
     WelchTest {
         se: Some(se),
         t,

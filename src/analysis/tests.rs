@@ -231,3 +231,33 @@ fn many_groups_skip_tukey_with_a_warning() {
         "Tukey–Kramer p-values are left out (null): with 50 groups there are 1225 pairs"
     )));
 }
+
+#[test]
+fn a_huge_value_in_one_group_gives_finite_welch_tests() {
+    // Found by the analysis fuzz target: one response of about 3e113 made that
+    // group's slope variance about 2e225, whose square overflowed the
+    // Welch–Satterthwaite df to NaN, and the t tail then panicked inside statrs.
+    let mut s = String::from("g,x,y\n");
+    for i in 0..8 {
+        let x = i as f64;
+        let e = [0.1, -0.2, 0.15, -0.05][i % 4];
+        s.push_str(&format!(
+            "a,{x},{}\nb,{x},{}\n",
+            1.0 + 0.5 * x + e,
+            2.0 + 2.0 * x - e
+        ));
+        let y = if i == 3 { 3.3e113 } else { 3.0 + x + e };
+        s.push_str(&format!("c,{x},{y:e}\n"));
+    }
+    let r = run_csv("", &s).unwrap();
+    assert_eq!(crate::results::first_non_finite(&r), None);
+    for p in &r.pairwise_slopes {
+        let df = p.welch.df.expect("a Welch df");
+        let p_value = p.welch.p_value.expect("a Welch p-value");
+        assert!(df.is_finite() && (0.0..=1.0).contains(&p_value), "{p:?}");
+        if p.b == "c" {
+            // The huge variance dominates: the df tend to group c's own, 8 - 2.
+            assert!((df - 6.0).abs() < 1e-6, "{df}");
+        }
+    }
+}

@@ -9,13 +9,36 @@
 
 use statrs::function::beta::{beta_reg, inv_beta_reg, ln_beta};
 
+/// I_x(a, b), or NaN when the arguments are outside its domain (statrs panics
+/// there). A NaN from a degenerate input then reaches the results' finite check as
+/// a clear error instead of ending the process.
+pub(crate) fn incomplete_beta(a: f64, b: f64, x: f64) -> f64 {
+    if a > 0.0 && b > 0.0 && a.is_finite() && b.is_finite() && (0.0..=1.0).contains(&x) {
+        beta_reg(a, b, x)
+    } else {
+        f64::NAN
+    }
+}
+
+/// The inverse of I_x(a, b) at p, NaN outside the domain (as above).
+fn inverse_incomplete_beta(a: f64, b: f64, p: f64) -> f64 {
+    if a > 0.0 && b > 0.0 && a.is_finite() && b.is_finite() && (0.0..=1.0).contains(&p) {
+        inv_beta_reg(a, b, p)
+    } else {
+        f64::NAN
+    }
+}
+
 /// Two-sided p-value P(|T| > |t|) for Student's t with `df` degrees of freedom.
 pub fn t_two_sided(t: f64, df: f64) -> f64 {
-    if !t.is_finite() {
+    if t.is_nan() {
+        return f64::NAN;
+    }
+    if t.is_infinite() {
         return 0.0;
     }
     let x = df / (df + t * t);
-    beta_reg(df / 2.0, 0.5, x).clamp(0.0, 1.0)
+    incomplete_beta(df / 2.0, 0.5, x).clamp(0.0, 1.0)
 }
 
 /// Upper tail P(T > t).
@@ -45,7 +68,10 @@ pub fn t_quantile(p: f64, df: f64) -> f64 {
 /// The t > 0 with upper tail P(T > t) = q, for 0 < q < 0.5.
 fn t_upper_quantile(q: f64, df: f64) -> f64 {
     // P(|T| > t) = 2q = I_x(ν/2, 1/2) with x = ν/(ν + t²).
-    let x = inv_beta_reg(df / 2.0, 0.5, 2.0 * q);
+    let x = inverse_incomplete_beta(df / 2.0, 0.5, 2.0 * q);
+    if x.is_nan() {
+        return f64::NAN;
+    }
     let mut t = (df * (1.0 - x) / x).sqrt();
     if !t.is_finite() || t <= 0.0 {
         t = 1.0;
@@ -55,13 +81,16 @@ fn t_upper_quantile(q: f64, df: f64) -> f64 {
 
 /// Upper tail P(F > f) for Snedecor's F with (d1, d2) degrees of freedom.
 pub fn f_sf(f: f64, d1: f64, d2: f64) -> f64 {
+    if f.is_nan() {
+        return f64::NAN;
+    }
     if f <= 0.0 {
         return 1.0;
     }
     if !f.is_finite() {
         return 0.0;
     }
-    beta_reg(d2 / 2.0, d1 / 2.0, d2 / (d2 + d1 * f)).clamp(0.0, 1.0)
+    incomplete_beta(d2 / 2.0, d1 / 2.0, d2 / (d2 + d1 * f)).clamp(0.0, 1.0)
 }
 
 /// Density of Snedecor's F.
@@ -77,19 +106,25 @@ pub fn f_pdf(f: f64, d1: f64, d2: f64) -> f64 {
 
 /// Lower tail P(F ≤ f), computed directly so small values keep their digits.
 pub fn f_cdf(f: f64, d1: f64, d2: f64) -> f64 {
+    if f.is_nan() {
+        return f64::NAN;
+    }
     if f <= 0.0 {
         return 0.0;
     }
     if !f.is_finite() {
         return 1.0;
     }
-    beta_reg(d1 / 2.0, d2 / 2.0, d1 * f / (d1 * f + d2)).clamp(0.0, 1.0)
+    incomplete_beta(d1 / 2.0, d2 / 2.0, d1 * f / (d1 * f + d2)).clamp(0.0, 1.0)
 }
 
 /// Quantile: the f with P(F ≤ f) = p, for 0 < p < 1.
 pub fn f_quantile(p: f64, d1: f64, d2: f64) -> f64 {
     // P(F > f) = 1 − p = I_x(d2/2, d1/2) with x = d2 / (d2 + d1 f).
-    let x = inv_beta_reg(d2 / 2.0, d1 / 2.0, 1.0 - p);
+    let x = inverse_incomplete_beta(d2 / 2.0, d1 / 2.0, 1.0 - p);
+    if x.is_nan() {
+        return f64::NAN;
+    }
     let mut f = d2 * (1.0 - x) / (d1 * x);
     if !f.is_finite() || f <= 0.0 {
         f = 1.0;
@@ -147,6 +182,26 @@ fn newton_on_log_tail(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn arguments_outside_the_domain_give_nan_not_a_panic() {
+        // statrs panics on these; a NaN is caught later as a clear error.
+        assert!(t_two_sided(1.0, f64::NAN).is_nan());
+        assert!(t_two_sided(f64::NAN, 5.0).is_nan());
+        assert!(f_sf(2.0, 1.0, 0.0).is_nan());
+        assert!(f_sf(f64::NAN, 1.0, 3.0).is_nan() && f_cdf(f64::NAN, 1.0, 3.0).is_nan());
+        assert_eq!(
+            (
+                t_two_sided(f64::INFINITY, 5.0),
+                f_sf(f64::INFINITY, 1.0, 3.0)
+            ),
+            (0.0, 0.0)
+        );
+        assert!(f_cdf(2.0, -1.0, 3.0).is_nan());
+        assert!(t_quantile(0.975, 0.0).is_nan());
+        assert!(f_quantile(0.95, 2.0, f64::INFINITY).is_nan());
+        assert!((incomplete_beta(1.0, 1.0, 0.25) - 0.25).abs() < 1e-15); // I_x(1, 1) = x
+    }
     use serde_json::Value;
 
     /// Reference values from scipy.stats (versions and script in tests/reference/).

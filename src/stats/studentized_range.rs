@@ -603,7 +603,7 @@ fn outer(
 /// via the regularized incomplete beta function, I_{df/(df+t²)}(df/2, 1/2).
 fn two_mean_sf(q: f64, df: f64) -> f64 {
     let t2 = 0.5 * q * q;
-    statrs::function::beta::beta_reg(0.5 * df, 0.5, df / (df + t2))
+    super::dist::incomplete_beta(0.5 * df, 0.5, df / (df + t2))
 }
 
 fn valid(k: usize, df: f64) -> bool {
