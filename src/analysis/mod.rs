@@ -56,6 +56,7 @@ pub fn row_influence(
 ) -> Result<Vec<influence::RowInfluence>, AnalysisError> {
     let mut warnings = Vec::new();
     let eligible = eligible::select(data, &mut warnings)?;
+    check_magnitudes(plan, &eligible.groups)?;
     let fits = Fits::new(&eligible.groups);
     let gate = gate::equal_slopes(
         &fits.separate,
@@ -372,10 +373,13 @@ fn check_magnitudes(plan: &Plan, groups: &[&GroupData]) -> Result<(), AnalysisEr
             hi_y = hi_y.max(y);
         }
     }
+    // The smallest group spread: one group's tiny spread is enough for its sum of
+    // squares to underflow, whatever the others hold.
     let spread_x = groups
         .iter()
         .map(|g| g.moments.max_x - g.moments.min_x)
-        .fold(0.0, f64::max);
+        .filter(|s| *s > 0.0)
+        .fold(f64::INFINITY, f64::min);
     let response = plan.model.response_transform.label(&plan.model.response);
     let covariate = plan.model.covariate_transform.label(&plan.model.covariate);
     let bad = |column: String, magnitude: f64| Err(AnalysisError::Magnitude { column, magnitude });
@@ -385,7 +389,7 @@ fn check_magnitudes(plan: &Plan, groups: &[&GroupData]) -> Result<(), AnalysisEr
     if max_y > LIMIT {
         return bad(response, max_y);
     }
-    if spread_x > 0.0 && spread_x < 1.0 / LIMIT {
+    if spread_x < 1.0 / LIMIT {
         return bad(covariate, spread_x);
     }
     if hi_y > lo_y && hi_y - lo_y < 1.0 / LIMIT {

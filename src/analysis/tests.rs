@@ -261,3 +261,27 @@ fn a_huge_value_in_one_group_gives_finite_welch_tests() {
         }
     }
 }
+
+#[test]
+fn one_group_with_a_tiny_covariate_spread_is_refused_plainly() {
+    // Found by the analysis fuzz target: the spread check looked at the widest
+    // group only, so a group spread over 1e-250 passed, its sum of squares
+    // underflowed to zero and fitting its line failed an internal expectation.
+    let mut s = String::from("g,x,y\n");
+    for i in 0..5 {
+        let x = i as f64;
+        s.push_str(&format!(
+            "a,{x},{}\nb,{:e},{}\n",
+            1.0 + x,
+            1.7e-250 * (1.0 + x),
+            2.0 + x
+        ));
+    }
+    match run_csv("", &s) {
+        Err(AnalysisError::Magnitude { column, magnitude }) => {
+            assert_eq!(column, "x");
+            assert!((magnitude - 6.8e-250).abs() < 1e-262, "{magnitude:e}");
+        }
+        other => panic!("{other:?}"),
+    }
+}
