@@ -22,6 +22,9 @@ use crate::plan::Plan;
 /// more than it saves.
 pub const PARALLEL_MIN_BYTES: u64 = 1 << 20;
 
+/// The UTF-8 byte-order mark.
+const BOM: &[u8] = b"\xEF\xBB\xBF";
+
 /// How far past the middle the cut looks for a line end before giving up.
 const CUT_SEARCH: usize = 1 << 16;
 
@@ -144,8 +147,9 @@ struct Half<R> {
     scan: Scanning<R>,
 }
 
-/// The byte offset just past the first line end at or after the middle of the file,
-/// or `None` when there is none within reach or it would leave the second half empty.
+/// The byte offset just past the first line end at or after the middle of the file
+/// that is followed by at least three bytes and no byte-order mark, or `None` when
+/// there is none within reach.
 fn find_cut<R: Read + Seek>(mut file: R, len: u64) -> io::Result<Option<u64>> {
     let middle = len / 2;
     file.seek(SeekFrom::Start(middle))?;
@@ -158,9 +162,12 @@ fn find_cut<R: Read + Seek>(mut file: R, len: u64) -> io::Result<Option<u64>> {
         }
         filled += n;
     }
-    let cut = buf[..filled]
-        .iter()
-        .position(|&b| b == b'\n')
+    let bytes = &buf[..filled];
+    // The CSV reader drops a byte-order mark at the start of its input, so the
+    // second half must not start with one (it would vanish from a cell).
+    let cut = (0..bytes.len())
+        .filter(|&i| bytes[i] == b'\n')
+        .find(|&i| bytes.get(i + 1..i + 4).is_some_and(|next| next != BOM))
         .map(|i| middle + i as u64 + 1)
         .filter(|&cut| cut < len);
     Ok(cut)
@@ -405,6 +412,26 @@ mod tests {
             &plan,
             &csv(40, |_| None).replacen("g,x,y", "\"g\",\"x\",\"y\"", 1),
         );
+    }
+
+    #[test]
+    fn a_byte_order_mark_after_the_middle_stays_in_its_cell() {
+        // Found by the csv_load fuzz target: the second half began with a
+        // byte-order mark, which its CSV reader dropped, so a label became empty.
+        let plan = plan_with(
+            "levels = [\"a\", \"b\"]\n[model.transform]\nresponse = \"log\"",
+            "",
+        );
+        let text = "g,x,y\na,22,\n\u{feff},,\u{cd}.58";
+        assert_same(&plan, text);
+        match in_halves(&plan, text).unwrap_err() {
+            DataError::UnlistedLevel { row, label, .. } => {
+                assert_eq!((row, label.as_str()), (2, "\u{feff}"))
+            }
+            other => panic!("{other:?}"),
+        }
+        let marked = csv(40, |i| (i == 21).then(|| "\u{feff}a,1,1".to_string()));
+        assert_same(&plan_with("", ""), &marked);
     }
 
     #[test]
