@@ -189,49 +189,28 @@ impl<'a> ser::Serializer for &'a mut Walk {
     }
 }
 
-impl ser::SerializeSeq for Items<'_> {
-    type Ok = ();
-    type Error = Found;
-    fn serialize_element<T: Serialize + ?Sized>(&mut self, v: &T) -> Result<(), Found> {
-        self.element(v)
-    }
-    fn end(self) -> Result<(), Found> {
-        Ok(())
-    }
+/// The sequence-like serde traits, each walking its elements in order.
+macro_rules! walk_elements {
+    ($($trait:ident :: $method:ident),*) => {$(
+        impl ser::$trait for Items<'_> {
+            type Ok = ();
+            type Error = Found;
+            fn $method<T: Serialize + ?Sized>(&mut self, v: &T) -> Result<(), Found> {
+                self.element(v)
+            }
+            fn end(self) -> Result<(), Found> {
+                Ok(())
+            }
+        }
+    )*};
 }
 
-impl ser::SerializeTuple for Items<'_> {
-    type Ok = ();
-    type Error = Found;
-    fn serialize_element<T: Serialize + ?Sized>(&mut self, v: &T) -> Result<(), Found> {
-        self.element(v)
-    }
-    fn end(self) -> Result<(), Found> {
-        Ok(())
-    }
-}
-
-impl ser::SerializeTupleStruct for Items<'_> {
-    type Ok = ();
-    type Error = Found;
-    fn serialize_field<T: Serialize + ?Sized>(&mut self, v: &T) -> Result<(), Found> {
-        self.element(v)
-    }
-    fn end(self) -> Result<(), Found> {
-        Ok(())
-    }
-}
-
-impl ser::SerializeTupleVariant for Items<'_> {
-    type Ok = ();
-    type Error = Found;
-    fn serialize_field<T: Serialize + ?Sized>(&mut self, v: &T) -> Result<(), Found> {
-        self.element(v)
-    }
-    fn end(self) -> Result<(), Found> {
-        Ok(())
-    }
-}
+walk_elements!(
+    SerializeSeq::serialize_element,
+    SerializeTuple::serialize_element,
+    SerializeTupleStruct::serialize_field,
+    SerializeTupleVariant::serialize_field
+);
 
 impl ser::SerializeMap for Items<'_> {
     type Ok = ();
@@ -247,35 +226,27 @@ impl ser::SerializeMap for Items<'_> {
     }
 }
 
-impl ser::SerializeStruct for &mut Walk {
-    type Ok = ();
-    type Error = Found;
-    fn serialize_field<T: Serialize + ?Sized>(
-        &mut self,
-        key: &'static str,
-        v: &T,
-    ) -> Result<(), Found> {
-        self.enter(format!(".{key}"), v)
-    }
-    fn end(self) -> Result<(), Found> {
-        Ok(())
-    }
+/// Struct fields, walked under their names.
+macro_rules! walk_fields {
+    ($($trait:ident),*) => {$(
+        impl ser::$trait for &mut Walk {
+            type Ok = ();
+            type Error = Found;
+            fn serialize_field<T: Serialize + ?Sized>(
+                &mut self,
+                key: &'static str,
+                v: &T,
+            ) -> Result<(), Found> {
+                self.enter(format!(".{key}"), v)
+            }
+            fn end(self) -> Result<(), Found> {
+                Ok(())
+            }
+        }
+    )*};
 }
 
-impl ser::SerializeStructVariant for &mut Walk {
-    type Ok = ();
-    type Error = Found;
-    fn serialize_field<T: Serialize + ?Sized>(
-        &mut self,
-        key: &'static str,
-        v: &T,
-    ) -> Result<(), Found> {
-        self.enter(format!(".{key}"), v)
-    }
-    fn end(self) -> Result<(), Found> {
-        Ok(())
-    }
-}
+walk_fields!(SerializeStruct, SerializeStructVariant);
 
 #[cfg(test)]
 mod tests {
