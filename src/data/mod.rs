@@ -1,11 +1,13 @@
-//! The data: one streaming pass over the CSV into per-group columns.
+//! The data: one streaming pass over the CSV into per-group columns (on a large
+//! file, one pass over each half at once; see `split`).
 //!
 //! For every record the loader applies the plan's row filters, then the missing-value
 //! tokens, then parses the response and covariate and applies their transforms; every
 //! row that does not enter the fits is counted under a [`DropReason`]. Each group keeps
 //! its (x, y) columns, the data row numbers and one-pass [`Moments`], so the fits need
-//! no second pass. The loader reads from any [`Read`]; opening the file is the command
-//! layer's job.
+//! no second pass. The loader reads through an opener the caller passes
+//! ([`load_seekable`]) or from bytes in memory ([`load`]); opening the file is the
+//! command layer's job.
 
 mod column;
 mod error;
