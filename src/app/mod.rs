@@ -1,0 +1,84 @@
+//! The edge: the only code that reads files, writes folders, runs processes and sets
+//! the exit status. One file per command; every error becomes a [`Diagnostic`] and
+//! is printed once, here.
+
+mod analyse;
+mod check;
+mod diff;
+mod files;
+mod init;
+mod plan_file;
+mod run;
+mod typst;
+mod verify;
+
+use std::io::Write;
+use std::process::ExitCode;
+
+use clap::Parser;
+
+use crate::cli::{Cli, Command};
+use crate::diagnostic::Diagnostic;
+
+pub use typst::{TYPST_ENV, TYPST_VERSION};
+
+/// Parses the command line and runs it.
+pub fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let outcome = match cli.command {
+        Command::Run { plans, out } => return run::run_plans(&plans, out.as_deref()),
+        Command::Check { plan } => check::check(&plan),
+        Command::Verify { folder, data } => verify::verify(&folder, data.as_deref()),
+        Command::Diff {
+            runs,
+            markdown,
+            figure,
+            alpha,
+            fail_on_change,
+        } => diff::diff(
+            &runs,
+            markdown.as_deref(),
+            figure.as_deref(),
+            alpha,
+            fail_on_change,
+        ),
+        Command::Init { data, out } => init::init(&data, out.as_deref()),
+        Command::Schema => {
+            say(crate::schema::PLAN_SCHEMA);
+            Ok(())
+        }
+        Command::Completions { shell } => {
+            let mut cmd = <Cli as clap::CommandFactory>::command();
+            let mut script = Vec::new();
+            clap_complete::generate(shell, &mut cmd, "slopewise", &mut script);
+            say(&String::from_utf8_lossy(&script));
+            Ok(())
+        }
+        Command::Man => {
+            let cmd = <Cli as clap::CommandFactory>::command();
+            let mut page = Vec::new();
+            clap_mangen::Man::new(cmd)
+                .render(&mut page)
+                .map(|()| say(&String::from_utf8_lossy(&page)))
+                .map_err(|e| Diagnostic::new(format!("cannot write the manual page: {e}")))
+        }
+    };
+    finish(outcome)
+}
+
+/// Writes to stdout; a closed pipe (`slopewise diff … | head`) ends output quietly.
+pub(super) fn say(text: &str) {
+    let mut out = std::io::stdout().lock();
+    let _ = out.write_all(text.as_bytes()).and_then(|()| out.flush());
+}
+
+/// Prints an error once and turns the outcome into the exit status.
+pub(super) fn finish(outcome: Result<(), Diagnostic>) -> ExitCode {
+    match outcome {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(d) => {
+            let _ = std::io::stderr().write_all(d.render().as_bytes());
+            ExitCode::FAILURE
+        }
+    }
+}

@@ -1,0 +1,186 @@
+//! `slopewise run`: each plan read, analysed, rendered and written as a run folder.
+
+use std::io::{IsTerminal, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use super::analyse::{Analysed, analyse};
+use super::files::{read_tree, relative_to};
+use super::plan_file::{LoadedPlan, load_plan, target_of};
+use super::say;
+use super::typst::compile_pdf;
+use crate::diagnostic::Diagnostic;
+use crate::plan::Format;
+use crate::{TOOL_VERSION, analysis, audit, output, report};
+
+/// `slopewise run`: runs each plan; a failing plan does not stop the others.
+pub(super) fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
+    let several = plans.len() > 1;
+    let mut failed = 0;
+    // A progress bar on a terminal; plain lines otherwise (logs, pipes, CI).
+    let bar = (several && std::io::stderr().is_terminal()).then(|| {
+        let bar = indicatif::ProgressBar::new(plans.len() as u64);
+        bar.set_style(
+            indicatif::ProgressStyle::with_template("{bar:30} {pos}/{len} {msg}")
+                .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+        );
+        bar
+    });
+    let progress_line = |line: String| match &bar {
+        Some(b) => b.println(line),
+        None => say(&format!("{line}\n")),
+    };
+    for plan_path in plans {
+        if let Some(b) = &bar {
+            b.set_message(plan_path.display().to_string());
+        }
+        let stem = plan_path.file_stem().unwrap_or_default();
+        let target = out.map(|o| {
+            if several {
+                o.join(stem)
+            } else {
+                o.to_path_buf()
+            }
+        });
+        let clash: Vec<String> = plans
+            .iter()
+            .filter(|p| *p != plan_path && p.file_stem().unwrap_or_default() == stem)
+            .map(|p| p.display().to_string())
+            .collect();
+        let outcome = match (&target, clash.is_empty()) {
+            (Some(t), false) if several => Err(Diagnostic::new(format!(
+                "{} and {} share the file name stem `{}`, so both would write {}",
+                plan_path.display(),
+                clash.join(", "),
+                stem.to_string_lossy(),
+                t.display()
+            ))
+            .help(
+                "rename one of the plan files, or run them separately with different --out folders",
+            )),
+            _ => run_plan(plan_path, target.as_deref()),
+        };
+        match outcome {
+            Ok(written) => progress_line(format!(
+                "{}: wrote {}",
+                plan_path.display(),
+                written.display()
+            )),
+            Err(d) => {
+                failed += 1;
+                match &bar {
+                    Some(b) => b.suspend(|| {
+                        let _ = std::io::stderr().write_all(d.render().as_bytes());
+                    }),
+                    None => {
+                        let _ = std::io::stderr().write_all(d.render().as_bytes());
+                    }
+                }
+            }
+        }
+        if let Some(b) = &bar {
+            b.inc(1);
+        }
+    }
+    if let Some(b) = &bar {
+        b.finish_and_clear();
+    }
+    if several {
+        say(&format!(
+            "{} of {} plans ran; {failed} failed\n",
+            plans.len() - failed,
+            plans.len()
+        ));
+    }
+    if failed == 0 {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::FAILURE
+    }
+}
+
+/// Renders every output the plan asks for, plus the plan copy.
+pub(super) fn render(lp: &LoadedPlan, a: &Analysed) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
+    let results = &a.results;
+    let formats = &lp.plan.report.formats;
+    let wants = |f: Format| formats.contains(&f);
+    let mut files = vec![(audit::PLAN_COPY.to_string(), lp.bytes.clone())];
+    let mut figure_refs = Vec::new();
+    if wants(Format::Markdown) || wants(Format::Pdf) {
+        let points = analysis::figure_points(&a.dataset, results);
+        for fig in report::figures::render(results, &points)
+            .map_err(|e| Diagnostic::new(format!("the figures could not be drawn: {e}")))?
+        {
+            figure_refs.push(report::FigureRef {
+                file: fig.file.clone(),
+                title: fig.title.clone(),
+                caption: fig.caption.clone(),
+                width: fig.width,
+            });
+            files.push((fig.file, fig.svg.into_bytes()));
+        }
+    }
+    let rendered = |r: Result<String, report::ReportError>| {
+        r.map(String::into_bytes).map_err(|e| e.diagnostic())
+    };
+    if wants(Format::Json) {
+        files.push(("results.json".to_string(), rendered(report::json(results))?));
+    }
+    if wants(Format::Markdown) {
+        files.push((
+            "report.md".to_string(),
+            rendered(report::markdown(results, &figure_refs))?,
+        ));
+    }
+    if wants(Format::Pdf) {
+        files.push((
+            "report.typ".to_string(),
+            report::pdf::TEMPLATE.as_bytes().to_vec(),
+        ));
+        files.push((
+            "report-data.json".to_string(),
+            rendered(report::pdf::data(results, &figure_refs))?,
+        ));
+    }
+    Ok(files)
+}
+
+/// Writes the run folder: outputs, then the PDF (if asked) and the manifest, in the
+/// staging folder before it is moved into place. `as_if` is the folder the manifest
+/// describes (the target, or for `verify` the folder being checked).
+pub(super) fn write_outputs(
+    lp: &LoadedPlan,
+    a: &Analysed,
+    files: &[(String, Vec<u8>)],
+    target: &Path,
+    as_if: &Path,
+) -> Result<(), Diagnostic> {
+    let pdf = lp.plan.report.formats.contains(&Format::Pdf);
+    let data_from_run_folder = relative_to(as_if, &a.data_path);
+    let finish = |staging: &Path| -> Result<(), Diagnostic> {
+        let compiled = if pdf { compile_pdf(staging) } else { Ok(()) };
+        let manifest = audit::Manifest {
+            tool_version: TOOL_VERSION.to_string(),
+            plan_file: lp.name.clone(),
+            plan_sha256: lp.sha256.clone(),
+            data_file: lp.plan.data.path.clone(),
+            data_from_run_folder: data_from_run_folder.clone(),
+            data_sha256: a.results.provenance.data_sha256.clone(),
+            outputs: audit::Manifest::hash_outputs(&read_tree(staging)?),
+        };
+        std::fs::write(staging.join(audit::MANIFEST), manifest.to_bytes())
+            .map_err(|e| Diagnostic::new(format!("cannot write the manifest: {e}")))?;
+        compiled
+    };
+    output::write_run_folder_with(target, files, finish).map_err(|e| e.diagnostic())?
+}
+
+/// Runs one plan end to end and returns the folder it wrote.
+pub(super) fn run_plan(plan_path: &Path, out: Option<&Path>) -> Result<PathBuf, Diagnostic> {
+    let lp = load_plan(plan_path)?;
+    let target = target_of(&lp, out)?;
+    let analysed = analyse(&lp, &lp.dir.join(&lp.plan.data.path))?;
+    let files = render(&lp, &analysed)?;
+    write_outputs(&lp, &analysed, &files, &target, &target)?;
+    Ok(target)
+}

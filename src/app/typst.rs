@@ -1,0 +1,62 @@
+//! The external `typst` program that turns the report's Typst source into a PDF.
+
+use std::path::Path;
+
+use crate::diagnostic::Diagnostic;
+
+/// The typst-cli version the PDF template is tested against.
+pub const TYPST_VERSION: &str = "0.15.1";
+
+/// Environment variable naming the typst binary, when it is not `typst` on PATH.
+pub const TYPST_ENV: &str = "SLOPEWISE_TYPST";
+
+/// Font the PDF and the figures use, handed to typst so no system font is needed.
+const FONT: &[u8] = crate::report::figures::FONT_BYTES;
+
+/// Compiles `report.typ` in the staging folder into `report.pdf` with the external
+/// `typst`: project root fixed to the folder, system fonts ignored, and a fixed
+/// creation date (SOURCE_DATE_EPOCH if set, else 0), so reruns give the same bytes.
+pub(super) fn compile_pdf(staging: &Path) -> Result<(), Diagnostic> {
+    let typst = std::env::var_os(TYPST_ENV).unwrap_or_else(|| "typst".into());
+    let fonts = staging.join(".fonts");
+    let cleanup = || {
+        let _ = std::fs::remove_dir_all(staging.join(".fonts"));
+        let _ = std::fs::remove_file(staging.join("report.pdf.partial"));
+    };
+    std::fs::create_dir_all(&fonts)
+        .and_then(|()| std::fs::write(fonts.join("DejaVuSans.ttf"), FONT))
+        .map_err(|e| Diagnostic::new(format!("cannot prepare the PDF fonts: {e}")))?;
+    let epoch = std::env::var("SOURCE_DATE_EPOCH")
+        .ok()
+        .filter(|v| v.parse::<u64>().is_ok())
+        .unwrap_or_else(|| "0".into());
+    let output = std::process::Command::new(&typst)
+        .current_dir(staging)
+        .args([
+            "compile",
+            "--root",
+            ".",
+            "--ignore-system-fonts",
+            "--font-path",
+            ".fonts",
+        ])
+        .args(["--creation-timestamp", &epoch, "report.typ", "report.pdf"])
+        .output();
+    cleanup();
+    let shown = Path::new(&typst).display().to_string();
+    match output {
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => Err(Diagnostic::new(format!(
+            "the PDF was not written: the `typst` program was not found ({shown}); report.md and results.json were written"
+        ))
+        .help(format!("install it with `cargo install typst-cli --version {TYPST_VERSION} --locked`"))
+        .help(format!("or set {TYPST_ENV} to the path of a typst binary"))),
+        Err(e) => Err(Diagnostic::new(format!("the PDF was not written: cannot run {shown}: {e}"))),
+        Ok(out) if !out.status.success() => Err(Diagnostic::new(format!(
+            "the PDF was not written: typst failed ({}); the other outputs were written. typst said:\n{}",
+            out.status,
+            String::from_utf8_lossy(&out.stderr).trim_end()
+        ))
+        .help(format!("slopewise is tested with typst {TYPST_VERSION}; check `{shown} --version`"))),
+        Ok(_) => Ok(()),
+    }
+}
