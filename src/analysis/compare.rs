@@ -15,7 +15,7 @@ use crate::fit::{CommonSlopeFit, Moments, OneLineFit};
 use crate::plan::Comparisons;
 use crate::results::{AdjustedMean, CommonSlope, GroupEffect, MeanPair};
 use crate::stats::dist::t_two_sided;
-use crate::stats::nested_f::{nested_f, NestedF};
+use crate::stats::nested_f::{NestedF, nested_f};
 
 /// The common slope with its interval.
 pub(super) fn common_slope(fit: &CommonSlopeFit, alpha: f64) -> CommonSlope {

@@ -42,7 +42,10 @@ pub(super) fn conclude(
 ) -> Results {
     let gate = &r.equal_slopes;
     let p_text = match gate.status.as_str() {
-        "exact-fit" => "an infinite F (every line passes exactly through its rows: exact fit), p = 0".to_string(),
+        "exact-fit" => {
+            "an infinite F (every line passes exactly through its rows: exact fit), p = 0"
+                .to_string()
+        }
         _ => gate.p_value.map_or("no p-value".to_string(), p_equation),
     };
     let homogeneous = gate.homogeneous;

@@ -15,7 +15,7 @@ use crate::number::sig;
 use crate::plan::Comparisons;
 use crate::results::{EqualSlopes, GroupLineResult, SlopePair};
 use crate::stats::dist::t_two_sided;
-use crate::stats::nested_f::{nested_f, NestedF};
+use crate::stats::nested_f::{NestedF, nested_f};
 
 /// Each group's own line with intervals at 1 − alpha.
 pub(super) fn group_lines(levels: &[&str], fit: &SeparateFit, alpha: f64) -> Vec<GroupLineResult> {

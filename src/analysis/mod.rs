@@ -140,10 +140,18 @@ impl Fits {
         let all = one.line.moments;
         // One pass over the rows gives every model's residual sum of squares
         // (see `rss_about` for why they are not taken from the moments).
-        let (mut rss_common, mut rss_one, mut floor) = (0.0, 0.0, 0.0);
+        // Each residual is taken about means that are themselves rounded, which shifts
+        // every residual of a group by the same tiny constant c; with the residuals'
+        // sum Σe = n c, Σe² − (Σe)²/n removes that shift exactly (the correction of
+        // the corrected two-pass algorithm, Chan, Golub & LeVeque 1983). It matters at
+        // large offsets: a response near 1e10 has means rounded to about 1e-6.
+        let corrected = |sq: f64, sum: f64, n: f64| (sq - sum * sum / n).max(0.0);
+        let (mut rss_common, mut floor) = (0.0, 0.0);
+        let (mut single_sq, mut single_sum) = (0.0, 0.0);
         for (g, line) in groups.iter().zip(&mut lines) {
             let m = &g.moments;
-            let (mut own, mut par, mut single) = (0.0, 0.0, 0.0);
+            let nf = m.n as f64;
+            let (mut own, mut own_sum, mut par, mut par_sum) = (0.0, 0.0, 0.0, 0.0);
             let (mut max_y, max_x) = (0.0_f64, m.min_x.abs().max(m.max_x.abs()));
             for (x, y) in points(g) {
                 max_y = max_y.max(y.abs());
@@ -152,15 +160,22 @@ impl Fits {
                 let c = dy - common.slope * dx;
                 let o = (y - all.mean_y) - one.line.slope * (x - all.mean_x);
                 own += e * e;
+                own_sum += e;
                 par += c * c;
-                single += o * o;
+                par_sum += c;
+                single_sq += o * o;
+                single_sum += o;
             }
-            line.rss = own;
-            rss_common += par;
-            rss_one += single;
-            let b = line.slope.abs().max(common.slope.abs()).max(one.line.slope.abs());
+            line.rss = corrected(own, own_sum, nf);
+            rss_common += corrected(par, par_sum, nf);
+            let b = line
+                .slope
+                .abs()
+                .max(common.slope.abs())
+                .max(one.line.slope.abs());
             floor += rounding_floor(m.n, max_y + b * max_x);
         }
+        let rss_one = corrected(single_sq, single_sum, all.n as f64);
         common.rss = rss_common;
         one.line.rss = rss_one;
         Fits {
@@ -303,11 +318,11 @@ fn procedure(
         )
     };
 
-    let (pooling, stopped) =
-        match limits::pooling(plan, equal_slopes.p_value, group_effect.p_value) {
-            Some((p, stopped)) => (Some(p), stopped),
-            None => (None, None),
-        };
+    let (pooling, stopped) = match limits::pooling(plan, equal_slopes.p_value, group_effect.p_value)
+    {
+        Some((p, stopped)) => (Some(p), stopped),
+        None => (None, None),
+    };
     if let Some(statement) = stopped {
         // Said first: the limits section has no line to read from.
         warnings.insert(0, statement);

@@ -32,7 +32,12 @@ pub(super) fn attach(plan: &Plan, data: &Dataset, flagged: &Flagged, results: &m
         return;
     }
     let reduced = data.without_rows(rows);
-    match procedure(plan, &reduced, results.provenance.clone(), Some(results.adjust_at)) {
+    match procedure(
+        plan,
+        &reduced,
+        results.provenance.clone(),
+        Some(results.adjust_at),
+    ) {
         Ok((alt, _)) => {
             let changed = alt.decision.homogeneous != results.decision.homogeneous;
             if changed {

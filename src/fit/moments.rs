@@ -140,8 +140,27 @@ mod tests {
 
     fn close(a: f64, b: f64) -> bool {
         // Means near 1e6 with spread near 5: the one-pass update keeps about 11
-        // digits of the centred sums, where Σx² − (Σx)²/n would keep about 3.
+        // digits of the centred sums (two passes keep all), where Σx² − (Σx)²/n would
+        // keep about 3.
         (a - b).abs() <= 1e-10 * a.abs().max(b.abs()).max(1e-300)
+    }
+
+    #[test]
+    fn two_pass_keeps_every_digit_at_a_large_offset() {
+        // Invented: x = 1e8 + i/4, y = 1e10 + 3 (x − 1e8) + a small pattern. The centred
+        // values are exact in floating point, so the sums are those of the pattern:
+        // Sxx = Σ (i/4 − 4.875)² over i < 40 is 333.125 exactly (by hand: Σ (i − 19.5)²
+        // = 5330, divided by 16), and the slope 3 plus the pattern's own, small slope.
+        let x: Vec<f64> = (0..40).map(|i| 1e8 + i as f64 * 0.25).collect();
+        let y: Vec<f64> = (0..40)
+            .map(|i| 1e10 + 3.0 * (i as f64 * 0.25) + [0.5, -0.5][i % 2])
+            .collect();
+        let m = Moments::from_columns(&x, &y);
+        assert_eq!(m.sxx, 333.125);
+        assert_eq!(m.mean_x, 1e8 + 4.875);
+        // Pattern +0.5/−0.5 alternating: Σ (x − x̄) p = −0.125 · 20 · 0.5 · 2 = −2.5,
+        // so Sxy = 3 · 333.125 − 2.5 (by hand).
+        assert_eq!(m.sxy, 3.0 * 333.125 - 2.5);
     }
 
     #[test]

@@ -91,7 +91,10 @@ mod tests {
     #[test]
     fn corners_are_decided() {
         assert_eq!(nested_f(1.0, 2.0, 0.0, 3.0, 1e-20), NestedF::ExactFit);
-        assert_eq!(nested_f(1e-30, 2.0, 0.0, 3.0, 1e-20), NestedF::NotComputable);
+        assert_eq!(
+            nested_f(1e-30, 2.0, 0.0, 3.0, 1e-20),
+            NestedF::NotComputable
+        );
         assert_eq!(nested_f(1.0, 2.0, 1.0, 0.0, 0.0), NestedF::NotComputable);
         assert_eq!(NestedF::ExactFit.p(), Some(0.0));
         assert_eq!(NestedF::ExactFit.f(), None);
