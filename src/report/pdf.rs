@@ -554,6 +554,7 @@ fn limits(b: &mut Builder, r: &Results, x: &str, y: &str) {
     b.para(format!(
         "Each crossing is the {x} value where the one-sided {conf} confidence bound of the mean {y} meets the limit, read from {}.",
         match model {
+            "not-decided" => "no line: the pooling steps stopped before choosing one",
             "pooled" => "the one pooled line",
             "common-slope" => "the parallel lines (one slope, each group's own intercept)",
             _ => "each group's own line and residual variance",
