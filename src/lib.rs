@@ -6,7 +6,7 @@
 //!    let every later error point at the key it concerns. Reads no data.
 //! 2. [`data`]: one streaming pass over the CSV (each half of a large file on its own
 //!    core): missing tokens, row filters, transforms, group labels; per-group columns,
-//!    one-pass moments and drop counts.
+//!    two-pass moments over the complete columns and drop counts.
 //! 3. [`fit`]: least squares from per-group centred moments: one line per group, the
 //!    parallel-lines (common slope) model and one line for all rows.
 //! 4. [`stats`]: distributions, p-value adjustment and other numerical building blocks.

@@ -217,6 +217,14 @@ pub struct EqualSlopes {
     pub rss_separate: f64,
     /// RSS of the common-slope model.
     pub rss_common: f64,
+    /// How the test came out: "computed", "exact-fit" (zero residual variance with
+    /// slopes that differ: F infinite, shown null, p = 0) or "not-computable" (0/0).
+    #[serde(default = "computed")]
+    pub status: String,
+}
+
+fn computed() -> String {
+    "computed".into()
 }
 
 /// A difference of two groups' slopes, a − b.
@@ -283,6 +291,9 @@ pub struct GroupEffect {
     pub p_value: Option<f64>,
     /// RSS of one line through all rows.
     pub rss_one_line: f64,
+    /// "computed", "exact-fit" or "not-computable", as for [`EqualSlopes::status`].
+    #[serde(default = "computed")]
+    pub status: String,
 }
 
 /// One line through all rows.
@@ -443,6 +454,9 @@ pub struct GroupNormality {
     pub n: u64,
     /// True when subsampled.
     pub subsampled: bool,
+    /// Why the group was not tested ("too-few-rows"), or null when it was.
+    #[serde(default)]
+    pub not_tested: Option<String>,
 }
 
 /// Brown–Forsythe test of equal spread.
@@ -531,7 +545,10 @@ pub struct LimitCrossing {
     pub confidence: f64,
     /// Covariate value where the bound meets the limit, or null.
     pub crossing: Option<f64>,
-    /// Why there is no crossing: "moves-away" or "never-within"; null otherwise.
+    /// Why there is no crossing, null otherwise: "never-within" (the bound never
+    /// meets the limit after the first observation), "beyond-at-start" (the bound is
+    /// already past the limit at the first observation) or "not-decided" (the
+    /// pooling steps stopped on a test that cannot be computed).
     pub reason: Option<String>,
     /// Smallest covariate value of the line's rows.
     pub observed_min: f64,
@@ -541,7 +558,7 @@ pub struct LimitCrossing {
     pub extrapolated: bool,
     /// How far beyond the observed maximum the crossing lies (0 when within).
     pub beyond: Option<f64>,
-    /// "separate", "common-slope" or "pooled".
+    /// "separate", "common-slope", "pooled" or "not-decided".
     pub model: String,
 }
 
@@ -552,8 +569,12 @@ pub struct EarliestCrossing {
     pub side: String,
     /// The group whose bound crosses first.
     pub level: String,
-    /// Its crossing.
+    /// Its crossing; for a line already past the limit, its first observation.
     pub crossing: f64,
+    /// True when that line's bound is already past the limit at its first
+    /// observation (then `crossing` is that observation, not a solved crossing).
+    #[serde(default)]
+    pub already_beyond: bool,
 }
 
 /// The lot-pooling steps (ICH Q1E 2003).
@@ -565,8 +586,13 @@ pub struct Pooling {
     pub intercepts_p: Option<f64>,
     /// Level of both tests.
     pub alpha: f64,
-    /// "separate", "common-slope" or "pooled".
+    /// "separate", "common-slope" or "pooled"; "not-decided" when a step's test
+    /// cannot be computed and the procedure stopped there.
     pub decision: String,
+    /// Why the steps stopped ("slopes" or "intercepts": the step whose test cannot be
+    /// computed); null when they ran to a decision.
+    #[serde(default)]
+    pub stopped_at: Option<String>,
 }
 
 /// The key results again, without the flagged rows.
@@ -576,6 +602,15 @@ pub struct Sensitivity {
     pub rows_removed: u64,
     /// Rows used.
     pub rows_used: u64,
+    /// Rows beyond the leverage cut-off only (not by Cook's distance or the
+    /// studentized residual), kept in the rerun: a design point at the end of the
+    /// covariate range is not an error in the data.
+    #[serde(default)]
+    pub rows_kept_leverage_only: u64,
+    /// The covariate value of the adjusted means: the full data's `adjust_at`, held
+    /// fixed so the comparison point does not move with the rows left out.
+    #[serde(default)]
+    pub adjust_at: f64,
     /// The gate without them.
     pub equal_slopes: EqualSlopes,
     /// Each group's line without them.
@@ -601,4 +636,27 @@ pub struct Decision {
     pub lead: String,
     /// Why, in one sentence.
     pub reason: String,
+    /// The model each part of the report is read from.
+    #[serde(default)]
+    pub models: DecisionModels,
+}
+
+/// Which fitted model each statement of a report rests on. The equal-slopes gate at
+/// `slopes_alpha` chooses the model of the comparisons and of influence; lot pooling
+/// at `pooling_alpha` chooses the model of the limits. When the two levels lead to
+/// different models, `agree` is false and the first warning says so.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+pub struct DecisionModels {
+    /// Comparisons between groups: "common-slope" (adjusted means) or
+    /// "separate-slopes" (slope differences, regions).
+    pub comparisons: String,
+    /// Influence measures (as `checks.influence.model`).
+    pub influence: String,
+    /// The limits' crossings: "separate", "common-slope", "pooled" or
+    /// "not-decided"; null without limits.
+    pub limits: Option<String>,
+    /// True when every part rests on the same lines (separate lines count as the
+    /// separate-slopes model, parallel lines as the common-slope model; the pooled line
+    /// is a model of its own).
+    pub agree: bool,
 }

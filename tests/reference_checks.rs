@@ -197,6 +197,8 @@ fn every_contract_number_matches_statsmodels() {
             for m in mine {
                 let w = &sides[m["side"].as_str().unwrap()];
                 assert_eq!(m["level"], w["level"], "{name} earliest");
+                // A line past the limit at its first observation comes first, marked.
+                assert_eq!(m["already_beyond"], w["already_beyond"], "{name} earliest");
                 let (a, b) = (
                     m["crossing"].as_f64().unwrap(),
                     w["crossing"].as_f64().unwrap(),

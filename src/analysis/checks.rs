@@ -2,7 +2,8 @@
 //! residuals, and the covariate's balance across groups.
 //!
 //! - Normality: Shapiro–Wilk W (Shapiro & Wilk 1965) with Royston's (1995)
-//!   approximation, on the pooled residuals and within each group. The method is
+//!   approximation, on the pooled residuals and within each group that has at least
+//!   [`MIN_GROUP_NORMALITY_DF`] residual degrees of freedom. The method is
 //!   valid up to 5000 values; above that a fixed-seed random subsample of 5000 is
 //!   tested (the same rows on every run) and the report says so.
 //! - Equal spread: the Brown–Forsythe test (Brown & Forsythe 1974), the one-way
@@ -23,6 +24,13 @@ use crate::stats::shapiro_wilk::{normal_scores, shapiro_wilk};
 
 /// Largest sample Royston's approximation covers.
 pub const SHAPIRO_MAX_N: usize = 5000;
+/// Residual degrees of freedom (n − 2) a group needs before its own normality check
+/// is made. A line's residuals satisfy two linear constraints, so with few rows they
+/// are mostly the design's shape: with three rows (one df) W is the same for every
+/// response, 0.75 at equally spaced covariate values, a guaranteed "departure".
+/// Eight df (ten rows) matches the rows per group below which the gate is called
+/// weak (common practice, no source).
+pub const MIN_GROUP_NORMALITY_DF: f64 = 8.0;
 /// Seed of the subsample drawn above [`SHAPIRO_MAX_N`].
 const SUBSAMPLE_SEED: u64 = 0x5105_e5a1_d0c5_2026;
 /// Quantile-plot points kept in `results.json`.
@@ -87,8 +95,21 @@ pub(super) fn normality(
         }
     };
     let mut per_group = Vec::new();
+    let mut too_few = Vec::new();
     for (gi, (g, l)) in groups.iter().zip(&fit.lines).enumerate() {
         let n = g.moments.n as usize;
+        if (n as f64) - 2.0 < MIN_GROUP_NORMALITY_DF {
+            too_few.push(format!("`{}`", g.level));
+            per_group.push(GroupNormality {
+                level: g.level.clone(),
+                statistic: None,
+                p_value: None,
+                n: 0,
+                subsampled: false,
+                not_tested: Some("too-few-rows".into()),
+            });
+            continue;
+        }
         let (values, sub) =
             tested_values(residuals(g, l.slope), n, SUBSAMPLE_SEED ^ (gi as u64 + 1));
         let (statistic, p_value) = match shapiro_wilk(&values) {
@@ -107,7 +128,16 @@ pub(super) fn normality(
             p_value,
             n: values.len() as u64,
             subsampled: sub,
+            not_tested: None,
         });
+    }
+    if !too_few.is_empty() {
+        warnings.push(format!(
+            "Normality within {} is not checked: too few rows to check (a group needs at least {} rows, {} residual degrees of freedom, before its own residuals can inform; with fewer, Shapiro–Wilk's W is set by the design, not the data). The pooled check stands.",
+            too_few.join(", "),
+            MIN_GROUP_NORMALITY_DF as u64 + 2,
+            MIN_GROUP_NORMALITY_DF as u64
+        ));
     }
     Normality {
         method: "shapiro-wilk".into(),

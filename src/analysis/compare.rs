@@ -9,29 +9,13 @@
 //! §18.3). The group effect is the extra-sum-of-squares F of one line against
 //! parallel lines.
 
-use super::gate::fill_adjusted;
+use super::pairwise::{adjust_pairs, tukey_kramer};
 use super::{interval, ratio};
 use crate::fit::{CommonSlopeFit, Moments, OneLineFit};
 use crate::plan::Comparisons;
 use crate::results::{AdjustedMean, CommonSlope, GroupEffect, MeanPair};
-use crate::stats::dist::{f_sf, t_two_sided};
-use crate::stats::studentized_range;
-
-/// Tukey–Kramer p-value of a pairwise t (Tukey 1953; Kramer 1956): the upper tail of
-/// the studentized range for `k` groups and `df` at q = |t|·√2.
-pub(super) fn tukey_kramer(t: f64, k: usize, df: f64) -> Option<f64> {
-    tukey_feasible(k).then(|| studentized_range::sf(t.abs() * std::f64::consts::SQRT_2, k, df))
-}
-
-/// Groups up to which Tukey–Kramer p-values are computed. Each costs a double
-/// integral (about a millisecond), and k groups have k(k − 1)/2 pairs: beyond 45
-/// groups (990 pairs) the run would spend many seconds on them.
-pub const MAX_TUKEY_GROUPS: usize = 45;
-
-/// True when Tukey–Kramer p-values are computed for `k` groups.
-pub(super) fn tukey_feasible(k: usize) -> bool {
-    k <= MAX_TUKEY_GROUPS
-}
+use crate::stats::dist::t_two_sided;
+use crate::stats::nested_f::{NestedF, nested_f};
 
 /// The common slope with its interval.
 pub(super) fn common_slope(fit: &CommonSlopeFit, alpha: f64) -> CommonSlope {
@@ -45,27 +29,35 @@ pub(super) fn common_slope(fit: &CommonSlopeFit, alpha: f64) -> CommonSlope {
     }
 }
 
-/// F = ((RSS_one − RSS_common)/(k − 1)) / (RSS_common/(n − k − 1)).
+/// F = ((RSS_one − RSS_common)/(k − 1)) / (RSS_common/(n − k − 1)); an exact fit of
+/// the parallel lines with intercepts that differ is p = 0 (see [`nested_f`]).
 pub(super) fn group_effect(
     common: &CommonSlopeFit,
     one: &OneLineFit,
+    floor: f64,
     warnings: &mut Vec<String>,
 ) -> GroupEffect {
     let df1 = common.intercepts.len() as f64 - 1.0;
     let extra = (one.line.rss - common.rss).max(0.0);
-    let f = ratio(extra / df1, common.sigma2());
-    if f.is_none() {
-        warnings.push(
-            "The group-effect F test could not be computed: the parallel lines fit every row exactly (zero residual variance)."
+    let test = nested_f(extra, df1, common.rss, common.df, floor);
+    match test {
+        NestedF::Value { .. } => {}
+        NestedF::ExactFit => warnings.push(
+            "The group-effect F statistic is infinite: the parallel lines pass exactly through every row (zero residual variance) while the intercepts differ, so p = 0 (exact fit)."
                 .into(),
-        );
+        ),
+        NestedF::NotComputable => warnings.push(
+            "The group-effect F test cannot be computed (0/0): the parallel lines pass exactly through every row and the intercepts agree to rounding, or no residual degrees of freedom are left."
+                .into(),
+        ),
     }
     GroupEffect {
-        f,
+        f: test.f(),
         df1,
         df2: common.df,
-        p_value: f.map(|f| f_sf(f, df1, common.df)),
+        p_value: test.p(),
         rss_one_line: one.line.rss,
+        status: test.status().to_string(),
     }
 }
 
@@ -129,12 +121,12 @@ pub(super) fn pairwise_adjusted(
             });
         }
     }
-    if method == Comparisons::TukeyKramer {
-        for p in &mut pairs {
-            p.p_adjusted = p.p_tukey;
-        }
-    } else {
-        fill_adjusted(&mut pairs, |p| p.p_value, |p, v| p.p_adjusted = v, method);
-    }
+    adjust_pairs(
+        &mut pairs,
+        method,
+        |p| p.p_tukey,
+        |p| p.p_value,
+        |p, v| p.p_adjusted = v,
+    );
     pairs
 }

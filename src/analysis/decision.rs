@@ -11,7 +11,7 @@ use super::gate::spread_warning;
 use crate::number::sig;
 use crate::number::{p_equation, trimmed};
 use crate::plan::Plan;
-use crate::results::{Decision, Results};
+use crate::results::{Decision, DecisionModels, Results};
 
 /// What the comparison leads with when slopes are equal.
 pub const LEAD_COMMON: &str = "common-slope";
@@ -24,6 +24,7 @@ pub(super) fn placeholder() -> Decision {
         homogeneous: false,
         lead: String::new(),
         reason: String::new(),
+        models: DecisionModels::default(),
     }
 }
 
@@ -31,12 +32,26 @@ pub(super) fn placeholder() -> Decision {
 /// usable slope test (common practice, no source).
 const LOW_POWER_N: u64 = 10;
 
-/// Fills in the decision and the warnings.
-pub(super) fn conclude(plan: &Plan, mut r: Results, mut warnings: Vec<String>) -> Results {
+/// Fills in the decision and the warnings. `limits_model` is the model the limits'
+/// crossings were read from, when the plan has limits.
+pub(super) fn conclude(
+    plan: &Plan,
+    mut r: Results,
+    mut warnings: Vec<String>,
+    limits_model: Option<&str>,
+) -> Results {
     let gate = &r.equal_slopes;
-    let p_text = gate.p_value.map_or("no p-value".to_string(), p_equation);
+    let p_text = match gate.status.as_str() {
+        "exact-fit" => {
+            "an infinite F (every line passes exactly through its rows: exact fit), p = 0"
+                .to_string()
+        }
+        _ => gate.p_value.map_or("no p-value".to_string(), p_equation),
+    };
     let homogeneous = gate.homogeneous;
-    let reason = if homogeneous {
+    let reason = if gate.status == "not-computable" {
+        "The equal-slopes test cannot be computed (no residual variation and no slope difference, 0/0); the slopes are identical to rounding, so the groups are compared on a common slope.".to_string()
+    } else if homogeneous {
         format!(
             "The equal-slopes test gives {p_text}, at or above slopes_alpha = {}, so the slopes are taken as equal and the groups are compared on a common slope.",
             trimmed(gate.alpha, 4)
@@ -83,18 +98,66 @@ pub(super) fn conclude(plan: &Plan, mut r: Results, mut warnings: Vec<String>) -
         ));
     }
 
+    let lead = if homogeneous {
+        LEAD_COMMON
+    } else {
+        LEAD_SEPARATE
+    };
+    let models = models(lead, &r.checks.influence.model, limits_model);
+    if !models.agree {
+        if let (Some(pooling), Some(limits)) = (&r.pooling, limits_model) {
+            if limits != "not-decided" {
+                // Said first: every later number is read with its model in mind.
+                warnings.insert(0, levels_disagree(&r, pooling.alpha, homogeneous, limits));
+            }
+        }
+    }
     r.decision = Decision {
         homogeneous,
-        lead: if homogeneous {
-            LEAD_COMMON
-        } else {
-            LEAD_SEPARATE
-        }
-        .to_string(),
+        lead: lead.to_string(),
         reason,
+        models,
     };
     r.warnings = warnings;
     r
+}
+
+/// The model of each part of the report. The gate and lot pooling agree when the
+/// limits use separate lines exactly when the comparisons use separate slopes.
+fn models(lead: &str, influence: &str, limits: Option<&str>) -> DecisionModels {
+    let agree = match limits {
+        None => true,
+        Some("separate") => lead == LEAD_SEPARATE,
+        Some("common-slope") | Some("pooled") => lead == LEAD_COMMON,
+        Some(_) => false,
+    };
+    DecisionModels {
+        comparisons: lead.to_string(),
+        influence: influence.to_string(),
+        limits: limits.map(str::to_string),
+        agree,
+    }
+}
+
+/// The statement that the plan's two levels led to different models.
+fn levels_disagree(r: &Results, pooling_alpha: f64, homogeneous: bool, limits: &str) -> String {
+    let gate = &r.equal_slopes;
+    let p = gate.p_value.map_or("no p-value".to_string(), p_equation);
+    let limits_text = match limits {
+        "separate" => "separate lines",
+        "common-slope" => "parallel lines",
+        _ => "one pooled line",
+    };
+    let (gate_side, pool_side, comparisons) = if homogeneous {
+        ("at or above", "below", "parallel lines")
+    } else {
+        ("below", "at or above", "separate lines")
+    };
+    format!(
+        "The plan's two levels lead to different models: the equal-slopes test gives {p}, {gate_side} slopes_alpha = {} but {pool_side} pooling_alpha = {}. The comparisons and the influence measures use {comparisons}; the limits' crossings are read from {limits_text}. Read each section with its model in mind, or set one level for both to have one model throughout.",
+        trimmed(gate.alpha, 4),
+        trimmed(pooling_alpha, 4)
+    )
 }
 
 /// What the assumption checks mean for the comparison the decision chose.

@@ -8,13 +8,14 @@
 //! variance with Welch–Satterthwaite degrees of freedom (Welch 1947; Satterthwaite
 //! 1946), for groups whose residual spreads differ.
 
+use super::pairwise::{adjust_pairs, tukey_kramer, welch};
 use super::{interval, ratio};
 use crate::fit::{CommonSlopeFit, SeparateFit};
 use crate::number::sig;
 use crate::plan::Comparisons;
-use crate::results::{EqualSlopes, GroupLineResult, SlopePair, WelchTest};
-use crate::stats::adjust::adjust;
-use crate::stats::dist::{f_sf, t_two_sided};
+use crate::results::{EqualSlopes, GroupLineResult, SlopePair};
+use crate::stats::dist::t_two_sided;
+use crate::stats::nested_f::{NestedF, nested_f};
 
 /// Each group's own line with intervals at 1 − alpha.
 pub(super) fn group_lines(levels: &[&str], fit: &SeparateFit, alpha: f64) -> Vec<GroupLineResult> {
@@ -46,37 +47,54 @@ pub(super) fn group_lines(levels: &[&str], fit: &SeparateFit, alpha: f64) -> Vec
 }
 
 /// The equal-slopes F test; slopes are homogeneous when p ≥ `slopes_alpha`.
+///
+/// `floor` is the residual sum of squares rounding alone leaves (see
+/// [`crate::stats::nested_f::rounding_floor`]). An exact fit with slopes that differ
+/// is p = 0, a decision like any other. When the separate lines fit exactly and the
+/// slopes agree to rounding (0/0) there is no test: the slopes are then taken as equal
+/// because they are identical, and the reason and a warning say so in those words.
 pub(super) fn equal_slopes(
     separate: &SeparateFit,
     common: &CommonSlopeFit,
     slopes_alpha: f64,
+    floor: f64,
     warnings: &mut Vec<String>,
 ) -> EqualSlopes {
     let k = separate.lines.len() as f64;
     let df1 = k - 1.0;
     let df2 = separate.df;
     let extra = (common.rss - separate.rss).max(0.0);
-    let f = ratio(extra / df1, separate.sigma2());
-    let p_value = f.map(|f| f_sf(f, df1, df2));
-    let homogeneous = match p_value {
-        Some(p) => p >= slopes_alpha,
-        None => {
+    let test = nested_f(extra, df1, separate.rss, df2, floor);
+    let homogeneous = match test {
+        NestedF::Value { p, .. } => p >= slopes_alpha,
+        NestedF::ExactFit => {
             warnings.push(
-                "The equal-slopes F test could not be computed: every group's line fits its rows exactly (zero residual variance). Slopes are taken as equal only if they are identical."
+                "The equal-slopes F statistic is infinite: every group's line passes exactly through its rows (zero residual variance) while the slopes differ, so p = 0 (exact fit) and the slopes are taken to differ."
                     .into(),
             );
-            extra <= f64::EPSILON * common.rss.max(f64::MIN_POSITIVE)
+            false
+        }
+        NestedF::NotComputable => {
+            warnings.push(if df2 > 0.0 {
+                "The equal-slopes F test cannot be computed (0/0): every group's line passes exactly through its rows and the slopes are identical to rounding, so there is neither residual variation nor a slope difference to test. The slopes are taken as equal because they are identical, not because a test said so."
+                    .to_string()
+            } else {
+                "The equal-slopes F test cannot be computed: the separate lines leave no residual degrees of freedom. The slopes are taken as equal by default, not because a test said so."
+                    .to_string()
+            });
+            true
         }
     };
     EqualSlopes {
-        f,
+        f: test.f(),
         df1,
         df2,
-        p_value,
+        p_value: test.p(),
         alpha: slopes_alpha,
         homogeneous,
         rss_separate: separate.rss,
         rss_common: common.rss,
+        status: test.status().to_string(),
     }
 }
 
@@ -107,71 +125,15 @@ pub(super) fn pairwise_slopes(
             });
         }
     }
-    if method == Comparisons::TukeyKramer {
-        let k = fit.lines.len();
-        for p in &mut pairs {
-            p.p_adjusted = p.t.and_then(|t| super::compare::tukey_kramer(t, k, fit.df));
-        }
-    } else {
-        fill_adjusted(&mut pairs, |p| p.p_value, |p, v| p.p_adjusted = v, method);
-    }
+    let k = fit.lines.len();
+    adjust_pairs(
+        &mut pairs,
+        method,
+        |p| p.t.and_then(|t| tukey_kramer(t, k, fit.df)),
+        |p| p.p_value,
+        |p, v| p.p_adjusted = v,
+    );
     pairs
-}
-
-/// t = d / √(se_a² + se_b²) with Welch–Satterthwaite df
-/// (se_a² + se_b²)² / (se_a⁴/df_a + se_b⁴/df_b).
-pub(crate) fn welch(
-    difference: f64,
-    se_a: Option<f64>,
-    se_b: Option<f64>,
-    df_a: f64,
-    df_b: f64,
-) -> WelchTest {
-    let (Some(va), Some(vb)) = (se_a.map(|s| s * s), se_b.map(|s| s * s)) else {
-        return WelchTest {
-            se: None,
-            t: None,
-            df: None,
-            p_value: None,
-        };
-    };
-    let v = va + vb;
-    let se = v.sqrt();
-    let t = ratio(difference, Some(se));
-    // Scaled by the larger variance: squaring a variance of 1e225 would overflow.
-    let m = va.max(vb);
-    let df = (v > 0.0).then(|| {
-        let (a, b) = (va / m, vb / m);
-        (a + b) * (a + b) / (a * a / df_a + b * b / df_b)
-    });
-    WelchTest {
-        se: Some(se),
-        t,
-        df,
-        p_value: match (t, df) {
-            (Some(t), Some(df)) => Some(t_two_sided(t, df)),
-            _ => None,
-        },
-    }
-}
-
-/// Adjusts the family of p-values read by `get`, storing them with `set`. Pairs
-/// whose p-value is unknown stay unknown and do not enter the family.
-pub(super) fn fill_adjusted<T>(
-    items: &mut [T],
-    get: impl Fn(&T) -> Option<f64>,
-    set: impl Fn(&mut T, Option<f64>),
-    method: Comparisons,
-) {
-    let known: Vec<(usize, f64)> = items
-        .iter()
-        .enumerate()
-        .filter_map(|(i, item)| get(item).map(|p| (i, p)))
-        .collect();
-    let adjusted = adjust(&known.iter().map(|(_, p)| *p).collect::<Vec<_>>(), method);
-    for ((i, _), p) in known.iter().zip(adjusted) {
-        set(&mut items[*i], Some(p));
-    }
 }
 
 /// Warns when residual spreads differ enough that the pooled slope tests mislead.

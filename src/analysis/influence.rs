@@ -37,6 +37,18 @@ pub(crate) struct Model<'a> {
     pub name: &'static str,
 }
 
+/// The rows beyond a cut-off, as the sensitivity rerun sees them.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Flagged {
+    /// Rows beyond the Cook's distance or studentized-residual cut-off, ascending:
+    /// the ones the rerun leaves out.
+    pub rerun: Vec<u32>,
+    /// Rows beyond the leverage cut-off alone. High leverage is where a row sits on
+    /// the covariate, not how it fits: design points at the ends of the range have it
+    /// by construction and carry the slope, so the rerun keeps them.
+    pub leverage_only: u64,
+}
+
 /// Influence measures of one row.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct RowInfluence {
@@ -102,24 +114,30 @@ impl Model<'_> {
         }
     }
 
-    /// The summary for the report, and every flagged row (for the sensitivity rerun).
-    pub fn summarize(&self) -> (Influence, Vec<u32>) {
+    /// The summary for the report, and the rows the sensitivity rerun leaves out.
+    pub fn summarize(&self) -> (Influence, Flagged) {
         let cut = self.cutoffs();
         let mut max_cooks: Option<f64> = None;
         let mut max_leverage: Option<f64> = None;
         let mut flagged_rows = Vec::new();
+        let (mut flagged_total, mut leverage_only) = (0_u64, 0_u64);
         let mut listed: Vec<RowInfluence> = Vec::new();
         self.each_row(|r| {
             max_leverage = Some(max_leverage.map_or(r.leverage, |m| m.max(r.leverage)));
             if let Some(c) = r.cooks_distance {
                 max_cooks = Some(max_cooks.map_or(c, |m| m.max(c)));
             }
-            let beyond = r.leverage > cut.leverage
-                || r.cooks_distance.is_some_and(|c| c > cut.cooks_distance)
+            let by_fit = r.cooks_distance.is_some_and(|c| c > cut.cooks_distance)
                 || r.studentized_residual
                     .is_some_and(|t| t.abs() > cut.studentized_residual);
-            if beyond {
-                flagged_rows.push(r.row);
+            let by_leverage = r.leverage > cut.leverage;
+            if by_fit || by_leverage {
+                if by_fit {
+                    flagged_rows.push(r.row);
+                } else {
+                    leverage_only += 1;
+                }
+                flagged_total += 1;
                 listed.push(r);
                 if listed.len() >= 4 * MAX_LISTED {
                     keep_top(&mut listed);
@@ -133,7 +151,7 @@ impl Model<'_> {
             max_cooks_distance: max_cooks,
             max_leverage,
             cutoffs: cut,
-            flagged_total: flagged_rows.len() as u64,
+            flagged_total,
             flagged: listed
                 .iter()
                 .map(|r| FlaggedRow {
@@ -145,7 +163,13 @@ impl Model<'_> {
                 })
                 .collect(),
         };
-        (influence, flagged_rows)
+        (
+            influence,
+            Flagged {
+                rerun: flagged_rows,
+                leverage_only,
+            },
+        )
     }
 }
 

@@ -7,12 +7,18 @@
 //!
 //! For a line with mean m(x) = m₀ + b u, u = x − x_c, and standard error of the mean
 //! s √(1/n + u²/S), the one-sided bound at confidence c is m(x) ∓ t_c s √(1/n + u²/S)
-//! (Draper & Smith 1998, §3.1). It equals the limit L where
-//! (m₀ − L + b u)² = t_c² s² (1/n + u²/S), a quadratic in u whose roots on the mean's
-//! side of the limit are where the bound meets it. In the direction of travel (a
-//! falling mean for a lower limit, a rising one for an upper limit) the crossing is the
-//! largest such root: beyond it the bound stays past the limit. The root is polished
-//! by Newton steps on the bound itself and checked before it is reported.
+//! (Draper & Smith 1998, §3.1). The crossing comes from the bound, never from the
+//! sign of the slope. Take a lower limit L (an upper limit is the same problem for
+//! −y and −L). g(u) = m₀ − L + b u − t_c s √(1/n + u²/S) is concave, so the covariate
+//! values where the bound is on the safe side form one interval; the crossing is its
+//! right end, where the bound goes past the limit for good. For large u,
+//! g(u) ≈ (b − t_c s/√S) u: unless the slope is significantly away from the limit at
+//! the bound's own level, the bound's curvature makes it reach any limit eventually,
+//! whatever the sign of the estimate. The roots of g are among those of the quadratic
+//! (m₀ − L + b u)² = t_c² s² (1/n + u²/S) with m₀ − L + b u ≥ 0; the largest is
+//! polished by Newton steps on the bound itself and checked before it is reported.
+//! A line whose bound is already past the limit at its first observation is reported
+//! as such, not given a crossing before its data begin.
 
 use crate::fit::{CommonSlopeFit, OneLineFit, SeparateFit};
 use crate::number::sig;
@@ -34,43 +40,49 @@ struct BoundLine {
 }
 
 impl BoundLine {
+    #[cfg(test)]
     fn bound(&self, x: f64, t: f64, sign: f64) -> f64 {
         let u = x - self.centre;
         self.mean0 + self.slope * u + sign * t * self.s * (self.inv_n + u * u / self.sxx).sqrt()
     }
 
-    fn bound_slope(&self, x: f64, t: f64, sign: f64) -> f64 {
-        let u = x - self.centre;
-        self.slope + sign * t * self.s * (u / self.sxx) / (self.inv_n + u * u / self.sxx).sqrt()
-    }
-
-    /// The crossing of `limit` in the direction of travel, or why there is none.
-    fn crossing(&self, limit: f64, lower: bool, confidence: f64) -> Result<f64, &'static str> {
-        // Lower limit: the bound is the mean minus t·se; upper: plus.
-        let sign = if lower { -1.0 } else { 1.0 };
-        let toward = if lower {
-            self.slope < 0.0
-        } else {
-            self.slope > 0.0
-        };
-        if !toward {
-            return Err("moves-away");
-        }
+    /// Where the bound meets `limit` for good, after the first observation.
+    fn crossing(&self, limit: f64, lower: bool, confidence: f64) -> Outcome {
+        // An upper limit on y is a lower limit on −y: flip the mean and the limit.
+        let sign = if lower { 1.0 } else { -1.0 };
+        let (mean0, slope, limit_l) = (sign * self.mean0, sign * self.slope, sign * limit);
         let t = t_quantile(confidence, self.df);
-        let d0 = self.mean0 - limit;
-        let v = t * t * self.s * self.s;
+        let ts = t * self.s;
+        // g(u) = mean0 − L + slope·u − ts √(1/n + u²/S): the bound's distance above L.
+        let g = |u: f64| mean0 - limit_l + slope * u - ts * (self.inv_n + u * u / self.sxx).sqrt();
+        let dg = |u: f64| slope - ts * (u / self.sxx) / (self.inv_n + u * u / self.sxx).sqrt();
+        let scale = limit.abs().max(self.mean0.abs()).max(1.0);
+        let start = self.observed[0] - self.centre;
+        if g(start) < -1e-12 * scale {
+            return Outcome::BeyondAtStart;
+        }
+        // Slope of g far out: positive means the bound moves away for good.
+        if slope - ts / self.sxx.sqrt() > 0.0 {
+            return Outcome::Never;
+        }
+        let d0 = mean0 - limit_l;
+        let v = ts * ts;
         let (a, b, c) = (
-            self.slope * self.slope - v / self.sxx,
-            2.0 * self.slope * d0,
+            slope * slope - v / self.sxx,
+            2.0 * slope * d0,
             d0 * d0 - v * self.inv_n,
         );
         let mut roots = Vec::new();
-        if a.abs() <= f64::EPSILON * (self.slope * self.slope).max(v / self.sxx) {
+        if a.abs() <= f64::EPSILON * (slope * slope).max(v / self.sxx) {
             if b != 0.0 {
                 roots.push(-c / b);
             }
         } else {
-            let disc = b * b - 4.0 * a * c;
+            let mut disc = b * b - 4.0 * a * c;
+            // A double root (an exact fit, s = 0) may come out a rounding below zero.
+            if disc < 0.0 && -disc <= 1e-12 * b * b {
+                disc = 0.0;
+            }
             if disc >= 0.0 {
                 let q = -0.5 * (b + if b >= 0.0 { 1.0 } else { -1.0 } * disc.sqrt());
                 if q != 0.0 {
@@ -79,53 +91,102 @@ impl BoundLine {
                 }
             }
         }
-        // Keep roots on the mean's side of the limit (the squared equation adds
-        // roots where the mean is past the limit), then polish on the bound.
+        // Keep roots on the bound's side of the limit (squaring adds roots where the
+        // mean is past the limit), then polish on g itself.
         let mut best: Option<f64> = None;
-        for u in roots {
-            let d = d0 + self.slope * u;
-            if !u.is_finite() || (lower && d < 0.0) || (!lower && d > 0.0) {
+        for u0 in roots {
+            if !u0.is_finite() || d0 + slope * u0 < -1e-12 * scale {
                 continue;
             }
-            let mut x = self.centre + u;
+            let mut u = u0;
             for _ in 0..4 {
-                let f = self.bound(x, t, sign) - limit;
-                let g = self.bound_slope(x, t, sign);
-                if g == 0.0 || !f.is_finite() {
+                let (f, d) = (g(u), dg(u));
+                if d == 0.0 || !f.is_finite() {
                     break;
                 }
-                x -= f / g;
+                u -= f / d;
             }
-            let scale = limit.abs().max(self.mean0.abs()).max(1.0);
-            if (self.bound(x, t, sign) - limit).abs() <= 1e-9 * scale {
-                best = Some(best.map_or(x, |b: f64| b.max(x)));
+            if g(u).abs() <= 1e-9 * scale && u >= start - 1e-12 * scale {
+                best = Some(best.map_or(u, |b: f64| b.max(u)));
             }
         }
-        best.ok_or("never-within")
+        match best {
+            Some(u) => Outcome::Crossing(self.centre + u),
+            None => Outcome::Never,
+        }
+    }
+}
+
+/// Where a line's bound meets a limit.
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum Outcome {
+    /// The covariate value where the bound goes past the limit for good.
+    Crossing(f64),
+    /// The bound stays on the safe side after the first observation.
+    Never,
+    /// The bound is past the limit already at the first observation.
+    BeyondAtStart,
+}
+
+impl Outcome {
+    fn crossing(self) -> Option<f64> {
+        match self {
+            Outcome::Crossing(x) => Some(x),
+            _ => None,
+        }
+    }
+
+    fn reason(self) -> Option<&'static str> {
+        match self {
+            Outcome::Crossing(_) => None,
+            Outcome::Never => Some("never-within"),
+            Outcome::BeyondAtStart => Some("beyond-at-start"),
+        }
     }
 }
 
 /// The lot-pooling decision from the two nested F tests already in the results.
+///
+/// An exact fit is p = 0 and the steps follow it. A step whose test cannot be
+/// computed (0/0) stops the procedure: the decision is "not-decided", no crossing is
+/// read, and the statement returned beside it says why (the caller puts it first
+/// among the warnings).
 pub(super) fn pooling(
     plan: &Plan,
     slopes_p: Option<f64>,
     intercepts_p: Option<f64>,
-) -> Option<Pooling> {
+) -> Option<(Pooling, Option<String>)> {
     (plan.tests.procedure == Procedure::LotPooling).then(|| {
         let alpha = plan.tests.pooling_alpha;
-        let decision = if slopes_p.is_some_and(|p| p < alpha) {
-            "separate"
-        } else if intercepts_p.is_some_and(|p| p < alpha) {
-            "common-slope"
-        } else {
-            "pooled"
+        let (decision, stopped_at) = match slopes_p {
+            None => ("not-decided", Some("slopes")),
+            Some(p) if p < alpha => ("separate", None),
+            Some(_) => match intercepts_p {
+                None => ("not-decided", Some("intercepts")),
+                Some(p) if p < alpha => ("common-slope", None),
+                Some(_) => ("pooled", None),
+            },
         };
-        Pooling {
-            slopes_p,
-            intercepts_p,
-            alpha,
-            decision: decision.to_string(),
-        }
+        let statement = stopped_at.map(|step| {
+            let test = if step == "slopes" {
+                "equal-slopes"
+            } else {
+                "equal-intercepts (group-effect)"
+            };
+            format!(
+                "Lot pooling stopped at its {step} step: the {test} test cannot be computed (no residual variation and no difference to test, 0/0), so no line was chosen and no crossing was read. Check that the response holds measured values, not fitted ones."
+            )
+        });
+        (
+            Pooling {
+                slopes_p,
+                intercepts_p,
+                alpha,
+                decision: decision.to_string(),
+                stopped_at: stopped_at.map(str::to_string),
+            },
+            statement,
+        )
     })
 }
 
@@ -191,21 +252,46 @@ pub(super) fn crossings(
     };
     let mut out = Vec::new();
     let mut earliest = Vec::new();
+    let decided = model != "not-decided";
     for (side, limit) in [("lower", spec.lower), ("upper", spec.upper)] {
         let Some(limit) = limit else { continue };
-        let mut first: Option<(f64, String)> = None;
+        // The earliest line: one already past the limit at its first observation
+        // comes before any solved crossing.
+        let mut first: Option<(bool, f64, String)> = None;
         for line in &lines {
-            let found = if line.s.is_finite() && line.df > 0.0 {
-                line.crossing(limit, side == "lower", spec.confidence)
+            let found = if !decided {
+                None
+            } else if line.s.is_finite() && line.df > 0.0 {
+                Some(line.crossing(limit, side == "lower", spec.confidence))
             } else {
-                Err("never-within")
+                Some(Outcome::Never)
             };
-            let crossing = found.ok();
+            let crossing = found.and_then(Outcome::crossing);
             let beyond = crossing.map(|c| (c - line.observed[1]).max(0.0));
-            if let Some(c) = crossing {
-                if first.as_ref().is_none_or(|(f, _)| c < *f) {
-                    first = Some((c, line.level.clone()));
+            let candidate = match found {
+                Some(Outcome::Crossing(c)) => Some((false, c)),
+                Some(Outcome::BeyondAtStart) => Some((true, line.observed[0])),
+                _ => None,
+            };
+            if let Some((already, c)) = candidate {
+                let earlier = match &first {
+                    None => true,
+                    Some((fa, fc, _)) => (already && !fa) || (already == *fa && c < *fc),
+                };
+                if earlier {
+                    first = Some((already, c, line.level.clone()));
                 }
+            }
+            if found == Some(Outcome::BeyondAtStart) {
+                warnings.push(format!(
+                    "For `{}` the {}% bound is already past the {side} limit {} at the first observation ({}): there is no crossing to estimate.",
+                    line.level,
+                    sig(100.0 * spec.confidence, 3),
+                    sig(limit, 4),
+                    sig(line.observed[0], 4)
+                ));
+            }
+            if let Some(c) = crossing {
                 if c > line.observed[1] {
                     warnings.push(format!(
                         "The {side}-limit crossing for `{}` at {} lies {} beyond the last observed covariate value ({}): it is an extrapolation, and whether it may be used is for the applicable guidance to say.",
@@ -213,14 +299,6 @@ pub(super) fn crossings(
                         sig(c, 4),
                         sig(c - line.observed[1], 3),
                         sig(line.observed[1], 4)
-                    ));
-                } else if c <= line.observed[0] {
-                    warnings.push(format!(
-                        "For `{}` the {}% bound is already past the {side} limit {} at the first observation ({}).",
-                        line.level,
-                        sig(100.0 * spec.confidence, 3),
-                        sig(limit, 4),
-                        sig(line.observed[0], 4)
                     ));
                 }
             }
@@ -230,7 +308,10 @@ pub(super) fn crossings(
                 side: side.to_string(),
                 confidence: spec.confidence,
                 crossing,
-                reason: found.err().map(str::to_string),
+                reason: match found {
+                    None => Some("not-decided".to_string()),
+                    Some(o) => o.reason().map(str::to_string),
+                },
                 observed_min: line.observed[0],
                 observed_max: line.observed[1],
                 extrapolated: crossing.is_some_and(|c| c > line.observed[1]),
@@ -239,11 +320,12 @@ pub(super) fn crossings(
             });
         }
         if model != "pooled" {
-            if let Some((crossing, level)) = first {
+            if let Some((already_beyond, crossing, level)) = first {
                 earliest.push(EarliestCrossing {
                     side: side.to_string(),
                     level,
                     crossing,
+                    already_beyond,
                 });
             }
         }
@@ -270,10 +352,17 @@ mod tests {
         }
     }
 
+    fn solved(o: Outcome) -> f64 {
+        match o {
+            Outcome::Crossing(x) => x,
+            other => panic!("{other:?}"),
+        }
+    }
+
     #[test]
     fn crossing_solves_the_bound_equation() {
         let l = line(-0.2);
-        let x = l.crossing(95.0, true, 0.95).unwrap();
+        let x = solved(l.crossing(95.0, true, 0.95));
         let t = t_quantile(0.95, 18.0);
         assert!((l.bound(x, t, -1.0) - 95.0).abs() < 1e-10);
         // The mean alone reaches 95 at month 37; the bound earlier.
@@ -281,8 +370,30 @@ mod tests {
     }
 
     #[test]
-    fn a_rising_mean_never_reaches_a_lower_limit() {
-        assert_eq!(line(0.2).crossing(95.0, true, 0.95), Err("moves-away"));
-        assert!(line(0.2).crossing(105.0, false, 0.95).is_ok());
+    fn a_rising_mean_reaches_a_lower_limit_unless_it_rises_significantly() {
+        // Slope margin of the bound: t(0.95, 18) · 0.5 / √1000 ≈ 0.0274.
+        let t = t_quantile(0.95, 18.0);
+        let margin = t * 0.5 / 1000f64.sqrt();
+        // A slope below the margin: the bound's curvature brings it down to 95.
+        let slow = line(0.5 * margin);
+        let x = solved(slow.crossing(95.0, true, 0.95));
+        assert!((slow.bound(x, t, -1.0) - 95.0).abs() < 1e-9, "{x}");
+        assert!(x > 24.0);
+        // A slope above it: the bound rises for good and never meets 95.
+        assert_eq!(line(0.2).crossing(95.0, true, 0.95), Outcome::Never);
+        assert!(matches!(
+            line(0.2).crossing(105.0, false, 0.95),
+            Outcome::Crossing(_)
+        ));
+    }
+
+    #[test]
+    fn a_line_past_the_limit_at_its_first_observation_is_said_so() {
+        // Mean 100 at month 12 falling 0.2 a month: 102.4 at month 0, so an upper
+        // limit of 101 is passed before the data begin.
+        assert_eq!(
+            line(-0.2).crossing(101.0, false, 0.95),
+            Outcome::BeyondAtStart
+        );
     }
 }

@@ -5,6 +5,8 @@
 //! 2. The three models are fitted from the groups' moments ([`crate::fit`]).
 //! 3. The equal-slopes gate and the slope comparisons ([`gate`]).
 //! 4. The common-slope comparison: adjusted means and their differences ([`compare`]).
+//!    Both kinds of pairwise differences share [`pairwise`] (adjustment, Tukey–Kramer,
+//!    the unpooled Welch form), so neither module imports the other.
 //! 5. Assumption checks ([`checks`], [`influence`]) and, when slopes differ, where
 //!    along the covariate the groups differ ([`regions`]).
 //! 6. The decision, and warnings when a comparison would mislead ([`decision`]).
@@ -19,6 +21,7 @@ mod error;
 mod gate;
 pub mod influence;
 mod limits;
+mod pairwise;
 mod regions;
 mod sensitivity;
 
@@ -32,11 +35,12 @@ use crate::results::{
     Provenance, Results,
 };
 use crate::stats::dist::t_quantile;
+use crate::stats::nested_f::rounding_floor;
 use crate::stats::quantile::quantiles;
 
 /// Runs the whole procedure. `provenance` is recorded as given.
 pub fn run(plan: &Plan, data: &Dataset, provenance: Provenance) -> Result<Results, AnalysisError> {
-    let (mut results, flagged) = procedure(plan, data, provenance)?;
+    let (mut results, flagged) = procedure(plan, data, provenance, None)?;
     if plan.checks.sensitivity {
         sensitivity::attach(plan, data, &flagged, &mut results);
     }
@@ -62,6 +66,7 @@ pub fn row_influence(
         &fits.separate,
         &fits.common,
         plan.tests.slopes_alpha,
+        fits.floor,
         &mut warnings,
     );
     let mut rows = Vec::new();
@@ -117,6 +122,9 @@ struct Fits {
     separate: SeparateFit,
     common: CommonSlopeFit,
     one: OneLineFit,
+    /// The residual sum of squares rounding alone can leave in any of the three
+    /// models; sums at or below it count as zero in the F tests.
+    floor: f64,
 }
 
 impl Fits {
@@ -132,29 +140,49 @@ impl Fits {
         let all = one.line.moments;
         // One pass over the rows gives every model's residual sum of squares
         // (see `rss_about` for why they are not taken from the moments).
-        let (mut rss_common, mut rss_one) = (0.0, 0.0);
+        // Each residual is taken about means that are themselves rounded, which shifts
+        // every residual of a group by the same tiny constant c; with the residuals'
+        // sum Σe = n c, Σe² − (Σe)²/n removes that shift exactly (the correction of
+        // the corrected two-pass algorithm, Chan, Golub & LeVeque 1983). It matters at
+        // large offsets: a response near 1e10 has means rounded to about 1e-6.
+        let corrected = |sq: f64, sum: f64, n: f64| (sq - sum * sum / n).max(0.0);
+        let (mut rss_common, mut floor) = (0.0, 0.0);
+        let (mut single_sq, mut single_sum) = (0.0, 0.0);
         for (g, line) in groups.iter().zip(&mut lines) {
             let m = &g.moments;
-            let (mut own, mut par, mut single) = (0.0, 0.0, 0.0);
+            let nf = m.n as f64;
+            let (mut own, mut own_sum, mut par, mut par_sum) = (0.0, 0.0, 0.0, 0.0);
+            let (mut max_y, max_x) = (0.0_f64, m.min_x.abs().max(m.max_x.abs()));
             for (x, y) in points(g) {
+                max_y = max_y.max(y.abs());
                 let (dx, dy) = (x - m.mean_x, y - m.mean_y);
                 let e = dy - line.slope * dx;
                 let c = dy - common.slope * dx;
                 let o = (y - all.mean_y) - one.line.slope * (x - all.mean_x);
                 own += e * e;
+                own_sum += e;
                 par += c * c;
-                single += o * o;
+                par_sum += c;
+                single_sq += o * o;
+                single_sum += o;
             }
-            line.rss = own;
-            rss_common += par;
-            rss_one += single;
+            line.rss = corrected(own, own_sum, nf);
+            rss_common += corrected(par, par_sum, nf);
+            let b = line
+                .slope
+                .abs()
+                .max(common.slope.abs())
+                .max(one.line.slope.abs());
+            floor += rounding_floor(m.n, max_y + b * max_x);
         }
+        let rss_one = corrected(single_sq, single_sum, all.n as f64);
         common.rss = rss_common;
         one.line.rss = rss_one;
         Fits {
             separate: SeparateFit::new(lines),
             common,
             one,
+            floor,
         }
     }
 
@@ -183,12 +211,15 @@ impl Fits {
     }
 }
 
-/// The procedure proper; also returns every row beyond an influence cut-off.
+/// The procedure proper; also returns the rows beyond the influence cut-offs.
+/// `adjust_at` overrides the plan's adjustment point (the sensitivity rerun holds
+/// the full data's).
 fn procedure(
     plan: &Plan,
     data: &Dataset,
     provenance: Provenance,
-) -> Result<(Results, Vec<u32>), AnalysisError> {
+    adjust_at: Option<f64>,
+) -> Result<(Results, influence::Flagged), AnalysisError> {
     let mut warnings = Vec::new();
     let eligible = eligible::select(data, &mut warnings)?;
     check_magnitudes(plan, &eligible.groups)?;
@@ -199,26 +230,32 @@ fn procedure(
     let alpha = plan.tests.alpha;
 
     let covariate_mean = one.line.moments.mean_x;
-    let adjust_at = match plan.model.adjust_at {
+    let adjust_at = adjust_at.unwrap_or(match plan.model.adjust_at {
         AdjustAt::Mean => covariate_mean,
         AdjustAt::Value(v) => v,
-    };
+    });
 
     let groups = gate::group_lines(&levels, separate, alpha);
-    let equal_slopes = gate::equal_slopes(separate, common, plan.tests.slopes_alpha, &mut warnings);
+    let equal_slopes = gate::equal_slopes(
+        separate,
+        common,
+        plan.tests.slopes_alpha,
+        fits.floor,
+        &mut warnings,
+    );
     let homogeneous = equal_slopes.homogeneous;
     let pairwise_slopes = gate::pairwise_slopes(&levels, separate, plan.tests.comparisons);
     let common_slope = compare::common_slope(common, alpha);
-    let group_effect = compare::group_effect(common, one, &mut warnings);
+    let group_effect = compare::group_effect(common, one, fits.floor, &mut warnings);
     let adjusted_means = compare::adjusted_means(&levels, &moments, common, adjust_at, alpha);
     let pairwise_adjusted =
         compare::pairwise_adjusted(&levels, &moments, common, alpha, plan.tests.comparisons);
-    if !compare::tukey_feasible(levels.len()) {
+    if !pairwise::tukey_feasible(levels.len()) {
         warnings.push(format!(
             "Tukey–Kramer p-values are left out (null): with {} groups there are {} pairs, and slopewise computes them for at most {} groups. Holm or Bonferroni adjustment covers any number of pairs.",
             levels.len(),
             levels.len() * (levels.len() - 1) / 2,
-            compare::MAX_TUKEY_GROUPS
+            pairwise::MAX_TUKEY_GROUPS
         ));
     }
     let effect_sizes = EffectSizes {
@@ -281,7 +318,15 @@ fn procedure(
         )
     };
 
-    let pooling = limits::pooling(plan, equal_slopes.p_value, group_effect.p_value);
+    let (pooling, stopped) = match limits::pooling(plan, equal_slopes.p_value, group_effect.p_value)
+    {
+        Some((p, stopped)) => (Some(p), stopped),
+        None => (None, None),
+    };
+    if let Some(statement) = stopped {
+        // Said first: the limits section has no line to read from.
+        warnings.insert(0, statement);
+    }
     let limit_model = match (&pooling, homogeneous) {
         (Some(p), _) => p.decision.clone(),
         (None, true) => "common-slope".to_string(),
@@ -355,7 +400,11 @@ fn procedure(
         decision: decision::placeholder(),
         warnings: Vec::new(),
     };
-    Ok((decision::conclude(plan, results, warnings), flagged))
+    let limits_model = plan.limits.as_ref().map(|_| limit_model.as_str());
+    Ok((
+        decision::conclude(plan, results, warnings, limits_model),
+        flagged,
+    ))
 }
 
 /// Squares of values beyond 1e150 overflow, and of spreads below 1e-150 underflow;

@@ -130,8 +130,9 @@ fn a_perfect_fit_gives_warnings_and_nulls_not_nan() {
     assert!(
         r.warnings
             .iter()
-            .any(|w| w.starts_with("The equal-slopes F test could not be computed"))
+            .any(|w| w.starts_with("The equal-slopes F test cannot be computed (0/0)"))
     );
+    assert_eq!(r.equal_slopes.status, "not-computable");
     assert!(r.warnings.iter().any(|w| {
         w.starts_with("The Shapiro–Wilk test of the pooled residuals could not be computed")
     }));
@@ -140,8 +141,14 @@ fn a_perfect_fit_gives_warnings_and_nulls_not_nan() {
             .iter()
             .any(|w| w.starts_with("The Brown–Forsythe test could not be computed"))
     );
-    // Equal slopes exactly: the gate still decides, on the identical slopes.
+    // Equal slopes exactly: the gate takes them as equal because they are identical,
+    // and says so rather than quoting a test.
     assert!(r.decision.homogeneous);
+    assert!(
+        r.decision.reason.contains("cannot be computed"),
+        "{}",
+        r.decision.reason
+    );
 }
 
 #[test]

@@ -130,17 +130,19 @@ pub enum DataError {
         /// The cell text.
         text: String,
     },
-    /// Values outside a transform's domain.
+    /// Values outside a transform's domain, in one transformed column or in both
+    /// (`also`), so that fixing the first does not just reveal the second.
     #[error(
-        "{transform} of `{column}` needs {domain}, but {count} used row{s} {have} other values; first: {first}",
+        "{transform} of `{column}` needs {domain}, but {count} used row{s} {have} other values; first: {first}{more}",
         transform = transform.name(),
         domain = transform.domain(),
         s = if *count == 1 { "" } else { "s" },
         have = if *count == 1 { "has" } else { "have" },
-        first = list_rows(rows)
+        first = list_rows(rows),
+        more = also.iter().map(|c| format!("; and {c}")).collect::<String>()
     )]
     OutsideDomain {
-        /// The column.
+        /// The column whose first offending row comes first.
         column: String,
         /// The transform.
         transform: Transform,
@@ -148,6 +150,8 @@ pub enum DataError {
         count: u64,
         /// The first few (data row, value).
         rows: Vec<(u64, f64)>,
+        /// The other transformed column, when its values leave its domain too.
+        also: Vec<DomainColumn>,
     },
     /// A group label that `model.levels` does not list.
     #[error(
@@ -181,6 +185,35 @@ pub enum DataError {
         /// The limit.
         max: u64,
     },
+}
+
+/// Values outside a transform's domain in one column.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DomainColumn {
+    /// The column.
+    pub column: String,
+    /// The transform.
+    pub transform: Transform,
+    /// How many rows.
+    pub count: u64,
+    /// The first few (data row, value).
+    pub rows: Vec<(u64, f64)>,
+}
+
+impl std::fmt::Display for DomainColumn {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "{} of `{}` needs {}, but {} used row{} {} other values; first: {}",
+            self.transform.name(),
+            self.column,
+            self.transform.domain(),
+            self.count,
+            if self.count == 1 { "" } else { "s" },
+            if self.count == 1 { "has" } else { "have" },
+            list_rows(&self.rows)
+        )
+    }
 }
 
 fn list_rows(rows: &[(u64, f64)]) -> String {

@@ -16,7 +16,7 @@ mod rows;
 mod split;
 
 pub use column::Column;
-pub use error::{CellAt, DataError, PlanKey};
+pub use error::{CellAt, DataError, DomainColumn, PlanKey};
 pub use rows::RowNumbers;
 pub use split::{PARALLEL_MIN_BYTES, load_seekable};
 
@@ -65,7 +65,8 @@ pub struct GroupData {
     pub y: Column<f64>,
     /// 1-based data row of each value (header excluded).
     pub rows: RowNumbers,
-    /// One-pass moments of (x, y).
+    /// Moments of (x, y): two-pass over the columns once they are complete (see
+    /// [`Moments::two_pass`]), so they do not depend on how the file was split.
     pub moments: Moments,
 }
 
@@ -101,7 +102,12 @@ impl GroupData {
         self.x.push(x);
         self.y.push(y);
         self.rows.push(row);
-        self.moments.push(x, y);
+    }
+
+    /// Computes the moments from the complete columns (two passes over memory).
+    fn finish_moments(&mut self) {
+        let moments = Moments::two_pass(|| self.points());
+        self.moments = moments;
     }
 
     /// Appends the rows of the same group from a later part of the file, whose row
@@ -110,7 +116,6 @@ impl GroupData {
         self.x.append(later.x);
         self.y.append(later.y);
         self.rows.append(later.rows, rows_before);
-        self.moments = self.moments.merge(&later.moments);
     }
 }
 
@@ -141,6 +146,7 @@ impl Dataset {
                         out.push(row, x, y);
                     }
                 }
+                out.finish_moments();
                 out
             })
             .collect();
@@ -421,8 +427,10 @@ impl<'a> Sorter<'a> {
         if rows_read == 0 {
             return Err(DataError::NoRows);
         }
-        domain_y.check(&model.response, model.response_transform)?;
-        domain_x.check(&model.covariate, model.covariate_transform)?;
+        domain_errors(
+            domain_y.problem(&model.response, model.response_transform),
+            domain_x.problem(&model.covariate, model.covariate_transform),
+        )?;
         if let Some(levels) = &model.levels {
             if let Some(i) = seen_level.iter().position(|seen| !seen) {
                 return Err(DataError::AbsentLevel {
@@ -433,6 +441,9 @@ impl<'a> Sorter<'a> {
             }
         } else {
             groups.sort_by(|a, b| a.level.cmp(&b.level));
+        }
+        for g in &mut groups {
+            g.finish_moments();
         }
         Ok(Dataset {
             columns: self.columns.to_vec(),
@@ -646,17 +657,33 @@ impl DomainErrors {
         );
     }
 
-    fn check(&self, column: &str, transform: Transform) -> Result<(), DataError> {
-        if self.count == 0 {
-            return Ok(());
-        }
-        Err(DataError::OutsideDomain {
+    fn problem(&self, column: &str, transform: Transform) -> Option<DomainColumn> {
+        (self.count > 0).then(|| DomainColumn {
             column: column.to_string(),
             transform,
             count: self.count,
             rows: self.rows.clone(),
         })
     }
+}
+
+/// One error naming every transformed column with values outside its domain, the
+/// column whose first offending row comes earlier first.
+fn domain_errors(y: Option<DomainColumn>, x: Option<DomainColumn>) -> Result<(), DataError> {
+    let mut found: Vec<DomainColumn> = [y, x].into_iter().flatten().collect();
+    // Stable: on a tie (both in one row) the response comes first.
+    found.sort_by_key(|c| c.rows.first().map_or(u64::MAX, |r| r.0));
+    let mut found = found.into_iter();
+    let Some(first) = found.next() else {
+        return Ok(());
+    };
+    Err(DataError::OutsideDomain {
+        column: first.column,
+        transform: first.transform,
+        count: first.count,
+        rows: first.rows,
+        also: found.collect(),
+    })
 }
 
 #[cfg(test)]

@@ -107,6 +107,21 @@ fn non_numbers_name_row_and_column() {
 }
 
 #[test]
+fn a_domain_error_names_every_transformed_column() {
+    // Invented rows: the covariate's log(0) in data row 1 comes before the response's
+    // log(-1) in data row 3; both columns are named, the earlier first.
+    let p = plan_with(
+        "[model.transform]\nresponse = \"log\"\ncovariate = \"log\"",
+        "",
+    );
+    let e = load_str(&p, "g,x,y\na,0,1\na,2,3\na,4,-1\na,0,2\n").unwrap_err();
+    assert_eq!(
+        e.to_string(),
+        "log of `x` needs positive values, but 2 used rows have other values; first: data row 1 (0), data row 4 (0); and log of `y` needs positive values, but 1 used row has other values; first: data row 3 (-1)"
+    );
+}
+
+#[test]
 fn transforms_apply_and_report_their_domain() {
     let p = plan_with(
         "[model.transform]\nresponse = \"log\"\ncovariate = \"sqrt\"",

@@ -206,11 +206,19 @@ pub fn data(r: &Results, figures: &[FigureRef]) -> Result<String, ReportError> {
     let es = &r.equal_slopes;
     b.h(1, "Do the slopes agree?");
     b.para(format!(
-        "Separate lines against parallel lines: F = {} on {} and {} df, {}; partial η² = {}.",
-        num(es.f),
+        "Separate lines against parallel lines: {} on {} and {} df, {}; partial η² = {}.",
+        if es.status == "exact-fit" {
+            "F infinite (exact fit)".to_string()
+        } else {
+            format!("F = {}", num(es.f))
+        },
         int(es.df1),
         int(es.df2),
-        peq(es.p_value),
+        if es.status == "exact-fit" {
+            "p = 0".to_string()
+        } else {
+            peq(es.p_value)
+        },
         num3(r.effect_sizes.equal_slopes_partial_eta2)
     ));
     b.para(r.decision.reason.clone());
@@ -508,9 +516,11 @@ fn limits(b: &mut Builder, r: &Results, x: &str, y: &str) {
             "Lines were pooled step by step (ICH Q1E 2003), each test at level {}.",
             trimmed(pool.alpha, 4)
         ));
-        let (one, two) = match pool.decision.as_str() {
-            "separate" => ("yes: separate lines", "not needed"),
-            "common-slope" => ("no: one slope", "yes: parallel lines"),
+        let (one, two) = match (pool.decision.as_str(), pool.stopped_at.as_deref()) {
+            ("separate", _) => ("yes: separate lines", "not needed"),
+            ("common-slope", _) => ("no: one slope", "yes: parallel lines"),
+            (_, Some("slopes")) => ("test not computable (0/0): stopped", "not reached"),
+            (_, Some(_)) => ("no: one slope", "test not computable (0/0): stopped"),
             _ => ("no: one slope", "no: one pooled line"),
         };
         b.table(
@@ -544,6 +554,7 @@ fn limits(b: &mut Builder, r: &Results, x: &str, y: &str) {
     b.para(format!(
         "Each crossing is the {x} value where the one-sided {conf} confidence bound of the mean {y} meets the limit, read from {}.",
         match model {
+            "not-decided" => "no line: the pooling steps stopped before choosing one",
             "pooled" => "the one pooled line",
             "common-slope" => "the parallel lines (one slope, each group's own intercept)",
             _ => "each group's own line and residual variance",
@@ -566,8 +577,11 @@ fn limits(b: &mut Builder, r: &Results, x: &str, y: &str) {
                     format!("{} {}", c.side, sig(c.limit, 4)),
                     match (c.crossing, c.reason.as_deref()) {
                         (Some(v), _) => sig(v, 4),
-                        (None, Some("moves-away")) => {
-                            "none: the mean moves away from the limit".into()
+                        (None, Some("beyond-at-start")) => {
+                            "none: already past the limit at the first observation".into()
+                        }
+                        (None, Some("not-decided")) => {
+                            "none: no line chosen (pooling stopped)".into()
                         }
                         _ => "none: the bound never meets the limit".into(),
                     },
@@ -582,12 +596,21 @@ fn limits(b: &mut Builder, r: &Results, x: &str, y: &str) {
             .collect(),
     );
     for e in &r.limits_earliest {
-        b.para(format!(
-            "Earliest {}-limit crossing: {} at {x} = {}.",
-            e.side,
-            e.level,
-            sig(e.crossing, 4)
-        ));
+        b.para(if e.already_beyond {
+            format!(
+                "Earliest past the {} limit: {}, already at its first observation ({x} = {}).",
+                e.side,
+                e.level,
+                sig(e.crossing, 4)
+            )
+        } else {
+            format!(
+                "Earliest {}-limit crossing: {} at {x} = {}.",
+                e.side,
+                e.level,
+                sig(e.crossing, 4)
+            )
+        });
     }
     b.para("These estimates support, and do not replace, the evaluation that the applicable guidance (for stability data, ICH Q1E) and a qualified person require. Whether, and how far, an estimate may be extrapolated beyond the observed data is for that guidance to decide.");
 }
@@ -623,11 +646,15 @@ fn checks(b: &mut Builder, r: &Results, x: &str, g: &str) {
             .map(|gn| {
                 vec![
                     gn.level.clone(),
-                    format!(
-                        "{}{}",
-                        gn.n,
-                        if gn.subsampled { " (subsample)" } else { "" }
-                    ),
+                    if gn.not_tested.is_some() {
+                        "too few rows to check".to_string()
+                    } else {
+                        format!(
+                            "{}{}",
+                            gn.n,
+                            if gn.subsampled { " (subsample)" } else { "" }
+                        )
+                    },
                     num(gn.statistic),
                     p(gn.p_value),
                 ]
@@ -707,8 +734,13 @@ fn checks(b: &mut Builder, r: &Results, x: &str, g: &str) {
     if let Some(s) = &r.sensitivity {
         b.h(2, "Without the influential rows");
         b.para(format!(
-            "The same procedure on {} rows, leaving out the {} rows beyond a cut-off.",
-            s.rows_used, s.rows_removed
+            "The same procedure on {} rows, leaving out the {} rows beyond the Cook's distance or studentized-residual cut-off; {} row{} beyond the leverage cut-off alone {} kept (leverage marks where a row sits on {x}, not how it fits). Adjusted means are taken at {x} = {}, as for all rows.",
+            s.rows_used,
+            s.rows_removed,
+            s.rows_kept_leverage_only,
+            if s.rows_kept_leverage_only == 1 { "" } else { "s" },
+            if s.rows_kept_leverage_only == 1 { "is" } else { "are" },
+            sig(s.adjust_at, 4)
         ));
         let yes = |v: bool| {
             if v {

@@ -105,8 +105,8 @@ CASES: dict[str, dict] = {
         "tests": {"alpha": 0.05, "comparisons": "holm", "procedure": "lot-pooling"},
     },
     # One lot starts below the lower limit (its month-0 results are under 95): its
-    # bound already lies below the limit at the first observation, so the crossing is
-    # at or below observed_min (here a negative month). Ordinary procedure: the
+    # bound already lies below the limit at the first observation, so it gets no
+    # crossing ("beyond-at-start") and comes first among the earliest. Ordinary procedure: the
     # equal-slopes gate at the default 0.05 passes, so the common-slope model.
     "limits_violated_first": {
         "seed": 41,
@@ -126,7 +126,8 @@ CASES: dict[str, dict] = {
         "tests": {"alpha": 0.05, "comparisons": "holm", "procedure": "lot-pooling",
                   "pooling_alpha": 0.25},
     },
-    # One lot's assay drifts up, away from the lower limit: crossing null, "moves-away".
+    # One lot's assay drifts up, away from the lower limit; whether its lower bound still
+    # reaches the limit depends on whether the rise is significant (see crossing()).
     "limits_wrong_sign": {
         "seed": 61,
         "title": "Reference: invented stability data, one lot moving away from the limit",
@@ -149,7 +150,8 @@ CASES: dict[str, dict] = {
     # Both limits, ordinary procedure (no `procedure` key): the slopes differ, so
     # separate lines. L-801 falls to the lower limit, L-802 rises to the upper one,
     # L-803 is nearly flat, and L-804 sits below the lower limit throughout with a
-    # slight downward drift, so its lower bound never reaches 95 ("never-within").
+    # slight downward drift, so it is past the limit from its first observation
+    # ("beyond-at-start").
     # L-804 was put on stability later: no 24-month pull, and one result lost (NA).
     "limits_two_sided": {
         "seed": 82,
@@ -254,11 +256,16 @@ class Line:
 def crossing(line: Line, side: str, limit: float, confidence: float):
     """(crossing, reason) for one line, one limit.
 
-    The crossing is where the bound equals the limit in the mean line's direction of
-    travel: lower limit, falling line: the largest x where the lower bound is the limit;
-    upper limit, rising line: the largest x where the upper bound is the limit. A line
-    moving the other way gives (None, "moves-away"); a bound that never meets the limit
-    gives (None, "never-within").
+    The crossing comes from the bound, not from the sign of the slope: it is the x after
+    the first observation where the bound goes past the limit for good (for a lower
+    limit the lower bound is concave in x, so the x where it is above the limit form
+    one interval, and the crossing is that interval's right end; an upper limit is the
+    mirror image). Outcomes:
+    * (None, "beyond-at-start"): the bound is already past the limit at observed_min;
+    * (None, "never-within"): the bound stays on the safe side from observed_min on,
+      which happens exactly when the slope is significantly away from the limit at the
+      bound's level (m1 - t se(m1) > 0 for a lower limit), checked on a wide grid;
+    * (c, None) otherwise, c the largest root.
 
     Candidates: bound(x) = limit means, for a lower limit, mean(x) - L = t se(x) with
     mean(x) - L >= 0 (for an upper limit L - mean(x) = t se(x), L - mean(x) >= 0).
@@ -266,15 +273,26 @@ def crossing(line: Line, side: str, limit: float, confidence: float):
     its real roots with the right sign of mean(x) - L are the roots of the bound, each
     polished with brentq on f(x) = bound(x) - L evaluated by statsmodels.
     """
-    toward = line.slope < 0 if side == "lower" else line.slope > 0
-    if not toward:
-        return None, "moves-away"
     res = line.res
     beta, cov = np.asarray(res.params), np.asarray(res.cov_params())
     t = float(scipy.stats.t.ppf(confidence, res.df_resid))
     e0, e1 = line.e0, line.e1
     m0, m1 = float(e0 @ beta), float(e1 @ beta)
     v0, v1, v2 = float(e0 @ cov @ e0), float(e0 @ cov @ e1), float(e1 @ cov @ e1)
+    sign = 1.0 if side == "lower" else -1.0     # distance to the safe side of the limit
+
+    def f(xv: float) -> float:
+        return line.bound(xv, side, confidence) - limit
+
+    span = line.observed_max - line.observed_min
+    if sign * f(line.observed_min) < 0:
+        return None, "beyond-at-start"
+    if sign * m1 - t * math.sqrt(v2) > 0:
+        # Moves away significantly: from observed_min on the bound never meets the limit.
+        grid = np.linspace(line.observed_min, line.observed_max + 100 * span, 20001)
+        b = line.bound_by_hand(grid, side, confidence)
+        assert np.all(sign * (b - limit) >= 0)
+        return None, "never-within"
     d = m0 - limit
     qa = m1 * m1 - t * t * v2
     qb = 2 * (m1 * d - t * t * v1)
@@ -290,9 +308,6 @@ def crossing(line: Line, side: str, limit: float, confidence: float):
             if (gap > 0) if side == "lower" else (gap < 0):
                 candidates.append(r)
 
-    def f(xv: float) -> float:
-        return line.bound(xv, side, confidence) - limit
-
     roots = []
     for r in candidates:
         others = [c for c in candidates if c != r]
@@ -303,28 +318,16 @@ def crossing(line: Line, side: str, limit: float, confidence: float):
         assert abs(f(root)) < 1e-9, f(root)
         assert abs(root - r) <= 1e-7 * max(1.0, abs(r)), (root, r)
         roots.append(root)
-    if not roots:
-        # Never meets: the bound is on the wrong side of the limit everywhere. Checked on
-        # a wide grid by the second route (numpy), far beyond the data both ways.
-        span = line.observed_max - line.observed_min
-        grid = np.linspace(line.observed_min - 100 * span, line.observed_max + 100 * span,
-                           20001)
-        b = line.bound_by_hand(grid, side, confidence)
-        assert np.all(b < limit) if side == "lower" else np.all(b > limit)
-        return None, "never-within"
+    roots = [r for r in roots if r >= line.observed_min]
+    assert roots, "a bound that is not significantly away from the limit must cross it"
     c = max(roots)
     # Beyond the crossing the bound stays on the wrong side; just before it, on the right
     # side (second route, numpy least squares).
-    span = line.observed_max - line.observed_min
     after = c + np.geomspace(1e-6, 100 * span, 2001)
-    before = c - np.geomspace(1e-6, (roots[1] - roots[0]) / 2 if len(roots) == 2 else span,
-                              201)
+    before = c - np.geomspace(1e-6, min(c - line.observed_min, span) / 2 or 1e-6, 201)
     ba, bb = line.bound_by_hand(after, side, confidence), line.bound_by_hand(before, side,
                                                                               confidence)
-    if side == "lower":
-        assert np.all(ba < limit) and np.all(bb > limit)
-    else:
-        assert np.all(ba > limit) and np.all(bb < limit)
+    assert np.all(sign * (ba - limit) < 0) and np.all(sign * (bb - limit) > 0)
     hand = float(line.bound_by_hand(np.array([c]), side, confidence)[0])
     assert abs(hand - limit) < 1e-8, (hand, limit)
     return c, None
@@ -425,10 +428,20 @@ def limits_expected(plan: dict, plan_path: Path, source: str) -> dict:
     if model != "pooled":
         earliest = {}
         for side in sides:
+            # A line already past the limit at its first observation comes first (at
+            # that observation); then the earliest solved crossing.
+            past = [e for e in entries if e["side"] == side and e["reason"] == "beyond-at-start"]
             found = [e for e in entries if e["side"] == side and e["crossing"] is not None]
-            best = min(found, key=lambda e: e["crossing"]) if found else None
-            earliest[side] = None if best is None else {"level": best["level"],
-                                                        "crossing": best["crossing"]}
+            if past:
+                best = min(past, key=lambda e: e["observed_min"])
+                earliest[side] = {"level": best["level"], "crossing": best["observed_min"],
+                                  "already_beyond": True}
+            elif found:
+                best = min(found, key=lambda e: e["crossing"])
+                earliest[side] = {"level": best["level"], "crossing": best["crossing"],
+                                  "already_beyond": False}
+            else:
+                earliest[side] = None
         out["earliest"] = earliest
     # Private to check_property: the slopes of the lines (not written).
     out["_slopes"] = {ln.level: ln.slope for ln in lines}
@@ -466,8 +479,9 @@ def check_property(name: str, result: dict, plan: dict, plan_path: Path) -> None
     elif name == "limits_violated_first":
         assert pooling is None and model == "common-slope"
         e = entry(result, "L-402", "lower")
-        assert e["crossing"] is not None and e["crossing"] <= e["observed_min"]
+        assert e["crossing"] is None and e["reason"] == "beyond-at-start"
         assert result["earliest"]["lower"]["level"] == "L-402"
+        assert result["earliest"]["lower"]["already_beyond"]
         # Its month-0 results average below the limit.
         y, x, g, _ = gen.select_rows(plan, plan_path)
         first = [yi for yi, xi, gi in zip(y, x, g) if gi == "L-402" and xi == 0.0]
@@ -481,8 +495,11 @@ def check_property(name: str, result: dict, plan: dict, plan_path: Path) -> None
     elif name == "limits_wrong_sign":
         assert model == "separate"
         e = entry(result, "L-602", "lower")
-        assert result["_slopes"]["L-602"] > 0 and e["crossing"] is None
-        assert e["reason"] == "moves-away" and not e["extrapolated"]
+        # A rising lot still reaches a lower limit unless it rises significantly: the
+        # outcome follows from the bound (see crossing()), whichever it is here.
+        assert result["_slopes"]["L-602"] > 0
+        assert e["reason"] in (None, "never-within") and (e["crossing"] is None) == (
+            e["reason"] is not None)
         assert all(en["crossing"] is not None for en in limits if en["level"] != "L-602")
     elif name == "limits_far":
         assert model == "pooled"
@@ -492,11 +509,13 @@ def check_property(name: str, result: dict, plan: dict, plan_path: Path) -> None
     elif name == "limits_two_sided":
         assert pooling is None and model == "separate" and "pooling" not in result
         assert [e["side"] for e in limits] == ["lower"] * 4 + ["upper"] * 4
-        assert entry(result, "L-804", "lower")["reason"] == "never-within"
+        # L-804 starts below the lower limit: already past it at its first observation.
+        assert entry(result, "L-804", "lower")["reason"] == "beyond-at-start"
         assert entry(result, "L-804", "lower")["observed_max"] == 18.0
-        assert entry(result, "L-802", "lower")["reason"] == "moves-away"
-        assert entry(result, "L-801", "upper")["reason"] == "moves-away"
-        assert result["earliest"]["lower"]["level"] == "L-801"
+        # Lines moving away significantly never meet the opposite limit.
+        assert entry(result, "L-802", "lower")["reason"] == "never-within"
+        assert entry(result, "L-801", "upper")["reason"] == "never-within"
+        assert result["earliest"]["lower"]["level"] == "L-804"  # past the limit from the start
         assert result["earliest"]["upper"]["level"] == "L-802"
         assert result["data"]["rows_dropped"] == {"missing_response": 1}
     else:
