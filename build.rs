@@ -10,8 +10,12 @@ use std::process::Command;
 
 fn git(args: &[&str]) -> Option<String> {
     let dir = std::env::var_os("CARGO_MANIFEST_DIR")?;
+    // A CI runner may own the checkout as another user; trusting this one folder
+    // on the command line keeps git from refusing it ("dubious ownership").
+    let trust = format!("safe.directory={}", Path::new(&dir).display());
     let out = Command::new("git")
-        .current_dir(dir)
+        .current_dir(&dir)
+        .args(["-c", &trust])
         .args(args)
         .output()
         .ok()?;
@@ -20,7 +24,13 @@ fn git(args: &[&str]) -> Option<String> {
 }
 
 fn main() {
-    let commit = git(&["rev-parse", "HEAD"]).unwrap_or_else(|| "unknown".into());
+    // A build from a source archive can name its commit through the environment.
+    println!("cargo:rerun-if-env-changed=SLOPEWISE_BUILD_COMMIT");
+    let commit = std::env::var("SLOPEWISE_BUILD_COMMIT")
+        .ok()
+        .filter(|c| !c.trim().is_empty())
+        .or_else(|| git(&["rev-parse", "HEAD"]))
+        .unwrap_or_else(|| "unknown".into());
     println!("cargo:rustc-env=SLOPEWISE_BUILD_COMMIT={commit}");
 
     let rustc = std::env::var_os("RUSTC").unwrap_or_else(|| "rustc".into());
