@@ -1,6 +1,7 @@
 //! Records what built this binary, for the provenance of every report: the commit
 //! of the source tree (`git rev-parse HEAD`; "unknown" when built outside a git
-//! checkout, such as from a source archive) and the compiler (`rustc -V`).
+//! checkout, such as from a source archive, unless SLOPEWISE_BUILD_COMMIT names it)
+//! and the compiler (`rustc -V`).
 //!
 //! Cargo reruns this script when HEAD or the branch it points at moves, so the
 //! recorded commit follows new commits without a clean build.
@@ -56,17 +57,23 @@ fn main() {
             Path::new(&std::env::var("CARGO_MANIFEST_DIR").unwrap_or_default()).join(p)
         }
     };
+    // Only files that exist: cargo reruns the script every build for a missing one.
+    // logs/HEAD grows with every commit and checkout, even when the branch's ref is
+    // packed and no loose ref file exists yet.
     if let Some(git_dir) = git(&["rev-parse", "--git-dir"]).map(absolute) {
-        println!("cargo:rerun-if-changed={}", git_dir.join("HEAD").display());
         let common = git(&["rev-parse", "--git-common-dir"])
             .map(absolute)
-            .unwrap_or(git_dir);
-        println!(
-            "cargo:rerun-if-changed={}",
-            common.join("packed-refs").display()
-        );
+            .unwrap_or_else(|| git_dir.clone());
+        let mut watch = vec![
+            git_dir.join("HEAD"),
+            git_dir.join("logs/HEAD"),
+            common.join("packed-refs"),
+        ];
         if let Some(branch) = git(&["symbolic-ref", "-q", "HEAD"]) {
-            println!("cargo:rerun-if-changed={}", common.join(branch).display());
+            watch.push(common.join(branch));
+        }
+        for path in watch.iter().filter(|p| p.exists()) {
+            println!("cargo:rerun-if-changed={}", path.display());
         }
     }
 }
