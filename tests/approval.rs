@@ -254,6 +254,15 @@ fn a_record_with_a_missing_field_is_rejected_clearly() {
         said.contains("approvals/001-ana-reviewer.json: REJECTED, not a valid approval record: it has no `role` field"),
         "{said}"
     );
+    // Nothing else can sit among the records unseen.
+    let dir = approved_run("stray-file", true);
+    std::fs::write(dir.join("out/approvals/notes.txt"), "approved, trust me").unwrap();
+    let said = fails(&sw(&dir, &["verify", "out"]));
+    assert!(
+        said.contains("approvals/notes.txt: REJECTED, not an approval record"),
+        "{said}"
+    );
+    assert!(said.contains("1 of 2 approvals no longer hold"), "{said}");
 }
 
 #[test]

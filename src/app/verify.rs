@@ -77,10 +77,11 @@ fn check_approvals(
         ));
         return Ok(None);
     }
+    // Every entry counts: anything that is not a record file is named, so nothing
+    // can sit in approvals/ unseen (the rerun comparison leaves this folder out).
     let mut records: Vec<PathBuf> = std::fs::read_dir(&dir)
         .map_err(|e| Diagnostic::new(format!("cannot read {}: {e}", dir.display())))?
         .filter_map(|e| e.ok().map(|e| e.path()))
-        .filter(|p| p.extension().is_some_and(|e| e == "json"))
         .collect();
     records.sort();
     if records.is_empty() {
@@ -98,6 +99,12 @@ fn check_approvals(
             "{APPROVALS_DIR}/{}",
             path.file_name().unwrap_or_default().to_string_lossy()
         );
+        if !path.is_file() || path.extension().is_none_or(|e| e != "json") {
+            text.push_str(&format!(
+                "{name}: REJECTED, not an approval record (slopewise writes only NNN-name.json files here)\n"
+            ));
+            continue;
+        }
         let parsed = std::fs::read(path)
             .map_err(|e| e.to_string())
             .and_then(|b| Approval::parse(&b).map_err(|e| e.to_string()));
