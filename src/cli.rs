@@ -41,6 +41,45 @@ pub enum Command {
         /// The data file, when it is no longer where the manifest says.
         #[arg(long, value_name = "CSV")]
         data: Option<PathBuf>,
+        /// A public key (.pub from `keygen`) whose approvals are accepted; repeat for
+        /// several. With any given, unsigned approvals and other keys do not hold.
+        #[arg(long = "trusted-key", value_name = "FILE.pub")]
+        trusted_keys: Vec<PathBuf>,
+    },
+    /// Run the reference datasets built into slopewise (NIST StRD, statsmodels
+    /// references) against their certified values and write a dated record.
+    Selftest {
+        /// Folder for the record (selftest-<date>.json and .md).
+        #[arg(long, value_name = "DIR", default_value = ".")]
+        out: PathBuf,
+    },
+    /// Make an Ed25519 key pair for signing approvals.
+    Keygen {
+        /// The private key file (the public one gets `.pub` added). Never overwritten.
+        #[arg(long, value_name = "FILE", default_value = "approval-key")]
+        out: PathBuf,
+    },
+    /// Approve a run folder: a dated record of who, in what role, and the hashes of
+    /// every file and the data, signed when a key is given. The report is untouched.
+    Approve {
+        /// A folder written by `slopewise run`.
+        #[arg(value_name = "RUN_FOLDER")]
+        folder: PathBuf,
+        /// Who approves.
+        #[arg(long, value_name = "NAME")]
+        by: String,
+        /// In what role, e.g. "QA reviewer".
+        #[arg(long, value_name = "ROLE")]
+        role: String,
+        /// The private key file from `slopewise keygen`, to sign the record.
+        #[arg(long, value_name = "FILE")]
+        key: Option<PathBuf>,
+        /// What the approval means, when the standard statement does not fit.
+        #[arg(long, value_name = "TEXT")]
+        meaning: Option<String>,
+        /// The data file, when it is no longer where the manifest says.
+        #[arg(long, value_name = "CSV")]
+        data: Option<PathBuf>,
     },
     /// Compare runs: two runs side by side, or a trend over several in order.
     Diff {

@@ -15,7 +15,8 @@
 //! 6. [`results`]: the serde types of `results.json` (the public contract).
 //! 7. [`report`]: Results to Markdown (minijinja templates) and JSON bytes.
 //! 8. [`output`]: run folders that appear whole or not at all; [`audit`]: their
-//!    manifests and the comparison `verify` makes.
+//!    manifests, the comparison `verify` makes, signed approvals and the self-test
+//!    against published reference values.
 //! 9. [`app`] and [`cli`]: the edge. The only code that touches files, the
 //!    environment and the process; [`diagnostic`] renders every error once, there.
 
@@ -44,3 +45,10 @@ pub mod stats;
 
 /// The tool version recorded in every report's provenance.
 pub const TOOL_VERSION: &str = env!("CARGO_PKG_VERSION");
+
+/// The commit slopewise was built from (`git rev-parse HEAD` in build.rs; "unknown"
+/// when built outside a git checkout).
+pub const BUILD_COMMIT: &str = env!("SLOPEWISE_BUILD_COMMIT");
+
+/// The compiler that built slopewise (`rustc -V` in build.rs).
+pub const RUSTC_VERSION: &str = env!("SLOPEWISE_RUSTC_VERSION");

@@ -146,6 +146,13 @@ fn check_replaceable(target: &Path) -> Result<(), OutputError> {
     for entry in entries {
         let entry = entry.map_err(|e| io_err(target, "cannot read the output folder", e))?;
         let name = entry.file_name().to_string_lossy().into_owned();
+        if name == crate::audit::approval::APPROVALS_DIR {
+            return Err(OutputError {
+                path: target.to_path_buf(),
+                message: "the output folder holds approvals of its report, which a new run would discard".into(),
+                help: "write the new run to another folder (report.out or --out) and approve that one; the approved folder stays as it is".into(),
+            });
+        }
         if !KNOWN_ENTRIES.contains(&name.as_str()) {
             return Err(foreign(&format!(
                 "holds `{name}`, which slopewise did not write"

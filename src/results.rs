@@ -99,6 +99,22 @@ pub struct Provenance {
     pub plan_file: String,
     /// The data file as named in the plan.
     pub data_file: String,
+    /// Commit of the source tree that built slopewise ("unknown" outside git).
+    #[serde(default)]
+    pub build_commit: String,
+    /// `rustc -V` of the compiler that built slopewise.
+    #[serde(default)]
+    pub rustc_version: String,
+    /// `typst --version` of the program that compiles the PDF; null when the plan
+    /// asks for no PDF or no typst was found (the run then says why).
+    #[serde(default)]
+    pub typst_version: Option<String>,
+    /// SHA-256 of every font handed to typst, by file name; empty without a PDF.
+    #[serde(default)]
+    pub font_sha256: BTreeMap<String, String>,
+    /// SHA-256 of every template that shaped the PDF, by file name; empty without a PDF.
+    #[serde(default)]
+    pub template_sha256: BTreeMap<String, String>,
 }
 
 /// The plan's model and test settings.

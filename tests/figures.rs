@@ -64,6 +64,7 @@ fn run(plan_extra: &str, csv: &str) -> (Results, FigurePoints) {
         data_sha256: String::new(),
         plan_file: String::new(),
         data_file: String::new(),
+        ..Provenance::default()
     };
     let results = analysis::run(&plan, &dataset, provenance).unwrap();
     let points = analysis::figure_points(&dataset, &results);

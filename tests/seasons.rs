@@ -32,6 +32,7 @@ fn run_text(plan_file: &str, plan_text: &str, csv: &str) -> Results {
         data_sha256: sha256_hex(csv.as_bytes()),
         plan_file: plan_file.into(),
         data_file: plan.data.path.clone(),
+        ..Provenance::default()
     };
     analysis::run(&plan, &dataset, provenance).unwrap()
 }

@@ -5,10 +5,11 @@ use std::fs::File;
 use std::path::{Path, PathBuf};
 
 use super::plan_file::LoadedPlan;
+use super::typst;
 use crate::diagnostic::Diagnostic;
 use crate::digest::HashingReader;
 use crate::results::Provenance;
-use crate::{TOOL_VERSION, analysis, data};
+use crate::{BUILD_COMMIT, RUSTC_VERSION, TOOL_VERSION, analysis, data};
 
 /// The data read and analysed, with their hash.
 pub(super) struct Analysed {
@@ -58,12 +59,28 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
         (dataset, hash)
     });
     let (dataset, data_sha256) = (dataset?, data_sha256?);
+    // What shaped the PDF is recorded only when there is one; a run without it
+    // does not depend on typst at all.
+    let pdf = plan.report.formats.contains(&crate::plan::Format::Pdf);
     let provenance = Provenance {
         tool_version: TOOL_VERSION.to_string(),
         plan_sha256: lp.sha256.clone(),
         data_sha256,
         plan_file: lp.name.clone(),
         data_file: plan.data.path.clone(),
+        build_commit: BUILD_COMMIT.to_string(),
+        rustc_version: RUSTC_VERSION.to_string(),
+        typst_version: if pdf { typst::version() } else { None },
+        font_sha256: if pdf {
+            typst::font_hashes()
+        } else {
+            Default::default()
+        },
+        template_sha256: if pdf {
+            typst::template_hashes()
+        } else {
+            Default::default()
+        },
     };
     let results = analysis::run(plan, &dataset, provenance).map_err(|e| {
         let mut d = e.diagnostic();

@@ -3,12 +3,16 @@
 //! is printed once, here.
 
 mod analyse;
+mod approve;
 mod check;
+mod clock;
 mod diff;
 mod files;
 mod init;
+mod keygen;
 mod plan_file;
 mod run;
+mod selftest;
 mod typst;
 mod verify;
 
@@ -28,7 +32,28 @@ pub fn main() -> ExitCode {
     let outcome = match cli.command {
         Command::Run { plans, out } => return run::run_plans(&plans, out.as_deref()),
         Command::Check { plan } => check::check(&plan),
-        Command::Verify { folder, data } => verify::verify(&folder, data.as_deref()),
+        Command::Verify {
+            folder,
+            data,
+            trusted_keys,
+        } => verify::verify(&folder, data.as_deref(), &trusted_keys),
+        Command::Selftest { out } => selftest::selftest(&out),
+        Command::Keygen { out } => keygen::keygen(&out),
+        Command::Approve {
+            folder,
+            by,
+            role,
+            key,
+            meaning,
+            data,
+        } => approve::approve(&approve::Request {
+            folder: &folder,
+            by: &by,
+            role: &role,
+            key: key.as_deref(),
+            meaning: meaning.as_deref(),
+            data: data.as_deref(),
+        }),
         Command::Diff {
             runs,
             markdown,

@@ -159,8 +159,14 @@ pub(super) fn write_outputs(
     let data_from_run_folder = relative_to(as_if, &a.data_path);
     let finish = |staging: &Path| -> Result<(), Diagnostic> {
         let compiled = if pdf { compile_pdf(staging) } else { Ok(()) };
+        let pv = &a.results.provenance;
         let manifest = audit::Manifest {
             tool_version: TOOL_VERSION.to_string(),
+            build_commit: pv.build_commit.clone(),
+            rustc_version: pv.rustc_version.clone(),
+            typst_version: pv.typst_version.clone(),
+            font_sha256: pv.font_sha256.clone(),
+            template_sha256: pv.template_sha256.clone(),
             plan_file: lp.name.clone(),
             plan_sha256: lp.sha256.clone(),
             data_file: lp.plan.data.path.clone(),

@@ -13,6 +13,37 @@ pub const TYPST_ENV: &str = "SLOPEWISE_TYPST";
 /// Font the PDF and the figures use, handed to typst so no system font is needed.
 const FONT: &[u8] = crate::report::figures::FONT_BYTES;
 
+/// The file name the font is handed to typst under.
+const FONT_FILE: &str = "DejaVuSans.ttf";
+
+/// The first line of `typst --version` (e.g. "typst 0.15.1 (…)"), for provenance;
+/// `None` when no typst runs (the PDF step then says why).
+pub(super) fn version() -> Option<String> {
+    let typst = std::env::var_os(TYPST_ENV).unwrap_or_else(|| "typst".into());
+    let out = std::process::Command::new(typst)
+        .arg("--version")
+        .output()
+        .ok()
+        .filter(|o| o.status.success())?;
+    let text = String::from_utf8_lossy(&out.stdout);
+    let line = text.lines().next()?.trim();
+    (!line.is_empty()).then(|| line.to_string())
+}
+
+/// SHA-256 of every font handed to typst, by the file name it gets.
+pub(super) fn font_hashes() -> std::collections::BTreeMap<String, String> {
+    [(FONT_FILE.to_string(), crate::digest::sha256_hex(FONT))].into()
+}
+
+/// SHA-256 of the Typst template the PDF is compiled from, by its file name.
+pub(super) fn template_hashes() -> std::collections::BTreeMap<String, String> {
+    [(
+        "report.typ".to_string(),
+        crate::digest::sha256_hex(crate::report::pdf::TEMPLATE.as_bytes()),
+    )]
+    .into()
+}
+
 /// Compiles `report.typ` in the staging folder into `report.pdf` with the external
 /// `typst`: project root fixed to the folder, system fonts ignored, and a fixed
 /// creation date (SOURCE_DATE_EPOCH if set, else 0), so reruns give the same bytes.
@@ -24,7 +55,7 @@ pub(super) fn compile_pdf(staging: &Path) -> Result<(), Diagnostic> {
         let _ = std::fs::remove_file(staging.join("report.pdf.partial"));
     };
     std::fs::create_dir_all(&fonts)
-        .and_then(|()| std::fs::write(fonts.join("DejaVuSans.ttf"), FONT))
+        .and_then(|()| std::fs::write(fonts.join(FONT_FILE), FONT))
         .map_err(|e| Diagnostic::new(format!("cannot prepare the PDF fonts: {e}")))?;
     let epoch = std::env::var("SOURCE_DATE_EPOCH")
         .ok()

@@ -1,28 +1,146 @@
-//! `slopewise verify`: rerun a run folder's recorded plan on its data and compare
-//! every output byte for byte.
+//! `slopewise verify`: check every approval of a run folder (its hashes and
+//! signature), then rerun the folder's recorded plan on its data and compare every
+//! output byte for byte.
 
-use std::fs::File;
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 use super::analyse::{analyse, hash_file};
+use super::approve::{data_path, present, read_manifest};
 use super::files::read_tree;
 use super::plan_file::parse_plan;
 use super::run::{render, write_outputs};
 use super::say;
-use crate::audit;
+use crate::audit::approval::{APPROVALS_DIR, Approval};
+use crate::audit::{self, keys};
 use crate::diagnostic::Diagnostic;
 
-/// `slopewise verify`: rerun the folder's plan on its data and compare bytes.
-pub(super) fn verify(folder: &Path, data_override: Option<&Path>) -> Result<(), Diagnostic> {
+/// `slopewise verify`: approvals first (so they are reported whatever changed),
+/// then the rerun.
+pub(super) fn verify(
+    folder: &Path,
+    data_override: Option<&Path>,
+    trusted: &[PathBuf],
+) -> Result<(), Diagnostic> {
+    let manifest = read_manifest(folder)?;
+    let trusted = trusted
+        .iter()
+        .map(|p| read_public(p))
+        .collect::<Result<Vec<_>, _>>()?;
+    let approvals = check_approvals(folder, &manifest, data_override, &trusted)?;
+    let rerun = rerun(folder, &manifest, data_override);
+    match approvals {
+        Some((held, total)) if held < total => {
+            let mut d = Diagnostic::new(format!(
+                "{}: {} of {total} approvals no longer hold",
+                folder.display(),
+                total - held
+            ))
+            .help(
+                "an approval covers the folder as it was approved; approve again after a new run",
+            );
+            if let Err(e) = rerun {
+                d = d.help(format!("also: {}", e.message));
+            }
+            Err(d)
+        }
+        None if !trusted.is_empty() => Err(Diagnostic::new(format!(
+            "{} has no approvals, so none is signed by the trusted keys",
+            folder.display()
+        ))
+        .help("approve it with `slopewise approve RUN --by NAME --role ROLE --key FILE`")),
+        _ => rerun,
+    }
+}
+
+fn read_public(path: &Path) -> Result<ed25519_dalek::VerifyingKey, Diagnostic> {
+    let text = std::fs::read_to_string(path)
+        .map_err(|e| Diagnostic::new(format!("cannot read the key {}: {e}", path.display())))?;
+    keys::parse_public(&text).map_err(|e| {
+        Diagnostic::new(format!("{} is not a public key: {e}", path.display()))
+            .help("pass the .pub file `slopewise keygen` wrote")
+    })
+}
+
+/// Prints each approval's standing; returns (holding, total), or `None` when the
+/// folder has no approvals.
+fn check_approvals(
+    folder: &Path,
+    manifest: &audit::Manifest,
+    data_override: Option<&Path>,
+    trusted: &[ed25519_dalek::VerifyingKey],
+) -> Result<Option<(usize, usize)>, Diagnostic> {
+    let dir = folder.join(APPROVALS_DIR);
+    if !dir.is_dir() {
+        say(&format!(
+            "{}: not approved (no records in {APPROVALS_DIR}/)\n",
+            folder.display()
+        ));
+        return Ok(None);
+    }
+    // Every entry counts: anything that is not a record file is named, so nothing
+    // can sit in approvals/ unseen (the rerun comparison leaves this folder out).
+    let mut records: Vec<PathBuf> = std::fs::read_dir(&dir)
+        .map_err(|e| Diagnostic::new(format!("cannot read {}: {e}", dir.display())))?
+        .filter_map(|e| e.ok().map(|e| e.path()))
+        .collect();
+    records.sort();
+    if records.is_empty() {
+        say(&format!(
+            "{}: not approved (no records in {APPROVALS_DIR}/)\n",
+            folder.display()
+        ));
+        return Ok(None);
+    }
+    let now = present(folder, &data_path(folder, manifest, data_override))?;
+    let mut held = 0;
+    let mut text = String::new();
+    for path in &records {
+        let name = format!(
+            "{APPROVALS_DIR}/{}",
+            path.file_name().unwrap_or_default().to_string_lossy()
+        );
+        if !path.is_file() || path.extension().is_none_or(|e| e != "json") {
+            text.push_str(&format!(
+                "{name}: REJECTED, not an approval record (slopewise writes only NNN-name.json files here)\n"
+            ));
+            continue;
+        }
+        let parsed = std::fs::read(path)
+            .map_err(|e| e.to_string())
+            .and_then(|b| Approval::parse(&b).map_err(|e| e.to_string()));
+        match parsed {
+            Err(why) => text.push_str(&format!(
+                "{name}: REJECTED, not a valid approval record: {why}\n"
+            )),
+            Ok(a) => {
+                let standing = a.check(&now, trusted);
+                let verdict = if standing.holds() {
+                    held += 1;
+                    "holds"
+                } else {
+                    "NO LONGER HOLDS"
+                };
+                text.push_str(&format!(
+                    "{name}: {} ({}), {}: {verdict}\n",
+                    a.by, a.role, a.when
+                ));
+                for line in standing.describe() {
+                    text.push_str(&format!("  {line}\n"));
+                }
+            }
+        }
+    }
+    say(&text);
+    Ok(Some((held, records.len())))
+}
+
+/// Reruns the folder's plan on its data and compares bytes (approvals left out).
+fn rerun(
+    folder: &Path,
+    manifest: &audit::Manifest,
+    data_override: Option<&Path>,
+) -> Result<(), Diagnostic> {
     let shown = folder.display().to_string();
-    let manifest_path = folder.join(audit::MANIFEST);
-    let manifest: audit::Manifest = std::fs::read(&manifest_path)
-        .map_err(|e| e.to_string())
-        .and_then(|b| serde_json::from_slice(&b).map_err(|e| e.to_string()))
-        .map_err(|e| {
-            Diagnostic::new(format!("{shown} has no readable {} ({e})", audit::MANIFEST))
-                .help("verify takes a folder written by `slopewise run`")
-        })?;
     let plan_copy = folder.join(audit::PLAN_COPY);
     let bytes = std::fs::read(&plan_copy)
         .map_err(|e| Diagnostic::new(format!("cannot read {}: {e}", plan_copy.display())))?;
@@ -40,12 +158,9 @@ pub(super) fn verify(folder: &Path, data_override: Option<&Path>) -> Result<(), 
             manifest.plan_sha256
         )));
     }
-    let data_path = data_override.map_or_else(
-        || folder.join(&manifest.data_from_run_folder),
-        Path::to_path_buf,
-    );
+    let data_path = data_path(folder, manifest, data_override);
     let data_shown = data_path.display().to_string();
-    let file = File::open(&data_path).map_err(|e| {
+    let file = std::fs::File::open(&data_path).map_err(|e| {
         Diagnostic::new(format!("cannot open the data file {data_shown}: {e}"))
             .help("if the data moved, pass its new place with --data")
     })?;
@@ -65,7 +180,9 @@ pub(super) fn verify(folder: &Path, data_override: Option<&Path>) -> Result<(), 
     let written = write_outputs(&lp, &a, &files, &rerun_dir, folder);
     let rerun = written.and_then(|()| read_tree(&rerun_dir));
     let _ = std::fs::remove_dir_all(&scratch);
-    let differences = audit::differences(&read_tree(folder)?, &rerun?);
+    let mut in_folder = read_tree(folder)?;
+    in_folder.retain(|name, _| !name.starts_with(&format!("{APPROVALS_DIR}/")));
+    let differences = audit::differences(&in_folder, &rerun?);
     if differences.is_empty() {
         say(&format!(
             "{shown}: every output is identical to a fresh run ({} files)\n",

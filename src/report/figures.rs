@@ -1849,6 +1849,7 @@ mod tests {
             data_sha256: String::new(),
             plan_file: String::new(),
             data_file: String::new(),
+            ..Provenance::default()
         };
         crate::analysis::run(&plan, &data, provenance).unwrap()
     }

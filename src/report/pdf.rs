@@ -264,23 +264,33 @@ pub fn data(r: &Results, figures: &[FigureRef]) -> Result<String, ReportError> {
     }
     let pv = &r.provenance;
     b.h(1, "Where these numbers came from");
-    b.table(
-        vec!["item".into(), "value".into()],
-        2,
-        vec![
-            vec!["slopewise version".into(), pv.tool_version.clone()],
-            vec!["plan file".into(), pv.plan_file.clone()],
-            vec!["plan SHA-256".into(), pv.plan_sha256.clone()],
-            vec!["data file".into(), pv.data_file.clone()],
-            vec!["data SHA-256".into(), pv.data_sha256.clone()],
-        ],
-    );
+    let mut rows = vec![
+        vec!["slopewise version".into(), pv.tool_version.clone()],
+        vec!["build commit".into(), pv.build_commit.clone()],
+        vec!["compiler".into(), pv.rustc_version.clone()],
+    ];
+    if let Some(v) = &pv.typst_version {
+        rows.push(vec!["typst".into(), v.clone()]);
+    }
+    for (name, hash) in &pv.font_sha256 {
+        rows.push(vec![format!("font {name} SHA-256"), hash.clone()]);
+    }
+    for (name, hash) in &pv.template_sha256 {
+        rows.push(vec![format!("template {name} SHA-256"), hash.clone()]);
+    }
+    rows.extend([
+        vec!["plan file".into(), pv.plan_file.clone()],
+        vec!["plan SHA-256".into(), pv.plan_sha256.clone()],
+        vec!["data file".into(), pv.data_file.clone()],
+        vec!["data SHA-256".into(), pv.data_sha256.clone()],
+    ]);
+    b.table(vec!["item".into(), "value".into()], 2, rows);
     b.para("The same plan and data give this report byte for byte; results.json beside it holds every number at full precision.");
 
     let doc = Document {
         title: r.title.clone(),
         subtitle: format!(
-            "Regression lines of {y} on {x}, compared across the {} groups of {g}. Written by slopewise {} from the plan {}.",
+            "Regression lines of {y} on {x}, compared across the {} groups of {g}. Written by slopewise {} from the plan {}. Approval: not approved unless a record in the approvals folder beside this report says so and `slopewise verify` finds it holds; approving never edits this report.",
             r.groups.len(),
             pv.tool_version,
             pv.plan_file

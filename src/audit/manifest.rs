@@ -1,7 +1,5 @@
 //! Run folders an auditor can check: the manifest each run writes, and the
 //! comparison `slopewise verify` makes between a folder and a fresh rerun.
-//!
-//! Pure: the command layer reads the files and hands their bytes in.
 
 use std::collections::BTreeMap;
 
@@ -19,6 +17,21 @@ pub const PLAN_COPY: &str = "plan.toml";
 pub struct Manifest {
     /// slopewise version that wrote the folder.
     pub tool_version: String,
+    /// Commit slopewise was built from ("unknown" outside git). Older folders lack it.
+    #[serde(default)]
+    pub build_commit: String,
+    /// The compiler that built slopewise.
+    #[serde(default)]
+    pub rustc_version: String,
+    /// `typst --version` when a PDF was asked for and typst was found.
+    #[serde(default)]
+    pub typst_version: Option<String>,
+    /// SHA-256 of every font handed to typst, by file name.
+    #[serde(default)]
+    pub font_sha256: BTreeMap<String, String>,
+    /// SHA-256 of every template that shaped the PDF, by file name.
+    #[serde(default)]
+    pub template_sha256: BTreeMap<String, String>,
     /// The plan's file name when it ran (the copy is `plan.toml`).
     pub plan_file: String,
     /// SHA-256 of the plan's bytes.
