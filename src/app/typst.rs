@@ -10,9 +10,6 @@ pub const TYPST_VERSION: &str = "0.15.1";
 /// Environment variable naming the typst binary, when it is not `typst` on PATH.
 pub const TYPST_ENV: &str = "SLOPEWISE_TYPST";
 
-/// Font the PDF and the figures use, handed to typst so no system font is needed.
-const FONT: &[u8] = crate::report::figures::FONT_BYTES;
-
 /// Compiles `report.typ` in the staging folder into `report.pdf` with the external
 /// `typst`: project root fixed to the folder, system fonts ignored, and a fixed
 /// creation date (SOURCE_DATE_EPOCH if set, else 0), so reruns give the same bytes.
@@ -23,8 +20,14 @@ pub(super) fn compile_pdf(staging: &Path) -> Result<(), Diagnostic> {
         let _ = std::fs::remove_dir_all(staging.join(".fonts"));
         let _ = std::fs::remove_file(staging.join("report.pdf.partial"));
     };
+    // The fonts the PDF and the figures use (regular, bold, oblique), handed to
+    // typst so no system font is needed and bold is truly bold.
     std::fs::create_dir_all(&fonts)
-        .and_then(|()| std::fs::write(fonts.join("DejaVuSans.ttf"), FONT))
+        .and_then(|()| {
+            crate::report::fonts::ALL
+                .iter()
+                .try_for_each(|f| std::fs::write(fonts.join(f.file), f.bytes))
+        })
         .map_err(|e| Diagnostic::new(format!("cannot prepare the PDF fonts: {e}")))?;
     let epoch = std::env::var("SOURCE_DATE_EPOCH")
         .ok()

@@ -32,7 +32,7 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 use plotters::style::{FontDesc, FontFamily, FontStyle, register_font};
 
-use super::markdown::label;
+use super::sections::label;
 use crate::number;
 use crate::results::FigurePoints;
 use crate::results::{GroupLineResult, Region, Results};
@@ -91,7 +91,7 @@ const POINT_BUDGET: usize = 10_000;
 /// The family name the font is registered under, and that the SVG asks for.
 const FONT_NAME: &str = "DejaVu Sans";
 /// The bundled font (licence in `assets/fonts/`).
-pub const FONT_BYTES: &[u8] = include_bytes!("../../assets/fonts/DejaVuSans.ttf");
+pub const FONT_BYTES: &[u8] = super::fonts::REGULAR.bytes;
 /// plotters' SVG backend writes a font size of `size / 1.24` pixels.
 const PLOTTERS_SIZE: f64 = 1.24;
 /// ab_glyph scales a font so ascent − descent equals the size; for DejaVu Sans that

@@ -1,0 +1,190 @@
+//! Every report of every demo plan, read back the way a reader's renderer reads it.
+//!
+//! The Markdown is parsed with a CommonMark/GFM parser (pulldown-cmark): every table
+//! row must have as many cells as its header (issue 12 measured the Johnson–Neyman
+//! table splitting rows), the rendered text must show no escape (`` \` ``) and no
+//! stray `**`, and the references list must be exactly the works cited, sorted.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+use pulldown_cmark::{Event, Options, Parser, Tag, TagEnd};
+use slopewise::report::cite::Work;
+
+fn root() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+fn typst_present() -> bool {
+    Command::new("typst")
+        .arg("--version")
+        .output()
+        .is_ok_and(|o| o.status.success())
+}
+
+/// Runs a plan; without typst, a stand-in writes an empty PDF so the Markdown and
+/// the PDF's data file are still written (the PDF itself is tests/pdf.rs' concern).
+fn run(plan: &Path, out: &Path, scratch: &Path) {
+    let mut cmd = Command::new(env!("CARGO_BIN_EXE_slopewise"));
+    cmd.arg("run").arg(plan).arg("--out").arg(out);
+    if !typst_present() {
+        let stub = scratch.join("typst-stub.sh");
+        std::fs::write(
+            &stub,
+            "#!/bin/sh\nfor a in \"$@\"; do last=$a; done\n: > \"$last\"\n",
+        )
+        .unwrap();
+        #[cfg(unix)]
+        {
+            use std::os::unix::fs::PermissionsExt;
+            std::fs::set_permissions(&stub, std::fs::Permissions::from_mode(0o755)).unwrap();
+        }
+        cmd.env("SLOPEWISE_TYPST", &stub);
+    }
+    let o = cmd.output().unwrap();
+    assert!(
+        o.status.success(),
+        "{}: {}",
+        plan.display(),
+        String::from_utf8_lossy(&o.stderr)
+    );
+}
+
+fn demo_reports() -> Vec<(String, PathBuf)> {
+    let dir = std::env::temp_dir().join(format!("slopewise-doc-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let mut plans: Vec<PathBuf> = std::fs::read_dir(root().join("plans"))
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|e| e == "toml"))
+        .collect();
+    plans.sort();
+    assert!(plans.len() >= 3);
+    plans
+        .iter()
+        .map(|plan| {
+            let stem = plan.file_stem().unwrap().to_string_lossy().into_owned();
+            let out = dir.join(&stem);
+            run(plan, &out, &dir);
+            (stem, out)
+        })
+        .collect()
+}
+
+/// What a renderer shows: the text of every text and code event, and the cell
+/// counts of every table (header first).
+struct Rendered {
+    text: String,
+    tables: Vec<Vec<usize>>,
+    /// Text before the references list, and the list's items.
+    body: String,
+    references: Vec<String>,
+}
+
+fn render(md: &str) -> Rendered {
+    let mut r = Rendered {
+        text: String::new(),
+        tables: Vec::new(),
+        body: String::new(),
+        references: Vec::new(),
+    };
+    let mut cells = 0;
+    let mut heading = String::new();
+    let mut in_heading = false;
+    let mut in_refs = false;
+    let mut item: Option<String> = None;
+    for ev in Parser::new_ext(md, Options::ENABLE_TABLES) {
+        match ev {
+            Event::Start(Tag::Table(_)) => r.tables.push(Vec::new()),
+            Event::Start(Tag::TableHead) | Event::Start(Tag::TableRow) => cells = 0,
+            Event::End(TagEnd::TableHead) | Event::End(TagEnd::TableRow) => {
+                r.tables.last_mut().unwrap().push(cells)
+            }
+            Event::Start(Tag::TableCell) => cells += 1,
+            Event::Start(Tag::Heading { .. }) => {
+                in_heading = true;
+                heading.clear();
+            }
+            Event::End(TagEnd::Heading(_)) => {
+                in_heading = false;
+                in_refs = heading == "References";
+            }
+            Event::Start(Tag::Item) if in_refs => item = Some(String::new()),
+            Event::End(TagEnd::Item) if in_refs => r.references.push(item.take().unwrap()),
+            Event::Text(s) | Event::Code(s) => {
+                r.text.push_str(&s);
+                r.text.push(' ');
+                if in_heading {
+                    heading.push_str(&s);
+                }
+                match item.as_mut() {
+                    Some(i) => i.push_str(&s),
+                    None if !in_refs => {
+                        r.body.push_str(&s);
+                        r.body.push(' ');
+                    }
+                    None => {}
+                }
+            }
+            _ => {}
+        }
+    }
+    r
+}
+
+#[test]
+fn every_demo_report_renders_clean_tables_text_and_references() {
+    let reports = demo_reports();
+    for (stem, out) in &reports {
+        let md = std::fs::read_to_string(out.join("report.md")).unwrap();
+        let r = render(&md);
+        assert!(r.tables.len() >= 5, "{stem}: {} tables", r.tables.len());
+        for (i, t) in r.tables.iter().enumerate() {
+            assert!(
+                t.iter().all(|&n| n == t[0]),
+                "{stem}: table {i} has rows of {t:?} cells"
+            );
+        }
+        assert!(!r.text.contains("\\`"), "{stem}: an escaped backtick shows");
+        assert!(!r.text.contains("**"), "{stem}: a literal ** shows");
+        assert!(!r.text.contains('`'), "{stem}: a backtick shows");
+        // The references are exactly the works cited in the text, in author–year
+        // order, each once.
+        let cited: Vec<&str> = Work::ALL
+            .iter()
+            .filter(|w| r.body.contains(w.short()))
+            .map(|w| w.entry())
+            .collect();
+        let mut sorted = cited.clone();
+        sorted.sort();
+        assert!(!r.references.is_empty(), "{stem}: no references");
+        assert_eq!(r.references, sorted, "{stem}: references against citations");
+        // The PDF's data holds the same text: no escaped backtick there either.
+        if let Ok(data) = std::fs::read_to_string(out.join("report-data.json")) {
+            assert!(!data.contains("\\\\`"), "{stem}: report-data.json");
+            assert!(
+                !data.contains('`'),
+                "{stem}: report-data.json shows a backtick"
+            );
+        }
+    }
+}
+
+#[test]
+fn the_nursery_report_cites_no_work_it_does_not_use() {
+    // Issue 12 measured the 2026 nursery report listing Potthoff and Dunn without
+    // citing them: it uses pointwise regions and Holm adjustment.
+    let reports = demo_reports();
+    let (_, out) = reports.iter().find(|(s, _)| s == "nursery-2026").unwrap();
+    let r = render(&std::fs::read_to_string(out.join("report.md")).unwrap());
+    for w in [Work::Potthoff1964, Work::Dunn1961] {
+        assert!(!r.references.iter().any(|e| e == w.entry()), "{w:?} listed");
+    }
+    assert!(r.references.iter().any(|e| e == Work::Holm1979.entry()));
+    assert!(
+        r.references
+            .iter()
+            .any(|e| e == Work::JohnsonNeyman1936.entry())
+    );
+}
