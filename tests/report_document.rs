@@ -50,8 +50,8 @@ fn run(plan: &Path, out: &Path, scratch: &Path) {
     );
 }
 
-fn demo_reports() -> Vec<(String, PathBuf)> {
-    let dir = std::env::temp_dir().join(format!("slopewise-doc-{}", std::process::id()));
+fn demo_reports(name: &str) -> Vec<(String, PathBuf)> {
+    let dir = std::env::temp_dir().join(format!("slopewise-doc-{name}-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
     let mut plans: Vec<PathBuf> = std::fs::read_dir(root().join("plans"))
@@ -135,7 +135,7 @@ fn render(md: &str) -> Rendered {
 
 #[test]
 fn every_demo_report_renders_clean_tables_text_and_references() {
-    let reports = demo_reports();
+    let reports = demo_reports("md");
     for (stem, out) in &reports {
         let md = std::fs::read_to_string(out.join("report.md")).unwrap();
         let r = render(&md);
@@ -175,7 +175,7 @@ fn every_demo_report_renders_clean_tables_text_and_references() {
 fn the_nursery_report_cites_no_work_it_does_not_use() {
     // Issue 12 measured the 2026 nursery report listing Potthoff and Dunn without
     // citing them: it uses pointwise regions and Holm adjustment.
-    let reports = demo_reports();
+    let reports = demo_reports("refs");
     let (_, out) = reports.iter().find(|(s, _)| s == "nursery-2026").unwrap();
     let r = render(&std::fs::read_to_string(out.join("report.md")).unwrap());
     for w in [Work::Potthoff1964, Work::Dunn1961] {
@@ -187,4 +187,47 @@ fn the_nursery_report_cites_no_work_it_does_not_use() {
             .iter()
             .any(|e| e == Work::JohnsonNeyman1936.entry())
     );
+}
+
+/// A tool's standard output, or None when it is not installed.
+fn tool(name: &str, args: &[&str], file: &Path) -> Option<String> {
+    let o = Command::new(name).args(args).arg(file).output().ok()?;
+    assert!(o.status.success(), "{name} failed on {}", file.display());
+    Some(String::from_utf8_lossy(&o.stdout).into_owned())
+}
+
+#[test]
+fn every_demo_pdf_is_bold_free_of_escapes_and_has_no_near_empty_page() {
+    if !typst_present() {
+        assert!(
+            std::env::var_os("SLOPEWISE_REQUIRE_PDF_TOOLS").is_none(),
+            "typst is missing and SLOPEWISE_REQUIRE_PDF_TOOLS forbids skipping"
+        );
+        eprintln!("note: typst is not installed; the PDF checks are skipped");
+        return;
+    }
+    for (stem, out) in demo_reports("pdf") {
+        let pdf = out.join("report.pdf");
+        if !pdf.exists() {
+            continue;
+        }
+        let Some(fonts) = tool("pdffonts", &[], &pdf) else {
+            return;
+        };
+        assert!(
+            fonts.contains("DejaVuSans-Bold"),
+            "{stem}: no bold face\n{fonts}"
+        );
+        let text = tool("pdftotext", &["-layout"], &pdf).unwrap();
+        assert!(!text.contains("\\`"), "{stem}: an escaped backtick shows");
+        // pdftotext separates pages with a form feed; the last page may be short.
+        let pages: Vec<&str> = text
+            .split('\u{c}')
+            .filter(|p| !p.trim().is_empty())
+            .collect();
+        for (i, page) in pages.iter().enumerate().take(pages.len().saturating_sub(1)) {
+            let lines = page.lines().filter(|l| !l.trim().is_empty()).count();
+            assert!(lines >= 8, "{stem}: page {} holds {lines} lines", i + 1);
+        }
+    }
 }

@@ -10,11 +10,12 @@
 use std::path::Path;
 
 use slopewise::digest::sha256_hex;
-use slopewise::results::{Provenance, Results};
-use slopewise::seasons::{
-    self, Comparison, Run, comparison_markdown, comparison_text, trend_markdown, trend_svg,
-    trend_text,
+use slopewise::report::figures::trend_svg;
+use slopewise::report::seasons::{
+    comparison_markdown, comparison_text, trend_markdown, trend_text,
 };
+use slopewise::results::{Provenance, Results};
+use slopewise::seasons::{self, Comparison, Run};
 use slopewise::{analysis, data, plan};
 
 fn read(rel: &str) -> String {

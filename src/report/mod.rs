@@ -12,6 +12,7 @@ mod error;
 pub mod figures;
 pub mod fonts;
 pub mod pdf;
+pub mod seasons;
 pub mod sections;
 pub mod write;
 

@@ -29,6 +29,9 @@ use plotters::coord::Shift;
 use plotters::coord::ranged1d::Ranged;
 use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
+mod trend;
+pub use trend::trend_svg;
+
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 use plotters::style::{FontDesc, FontFamily, FontStyle, register_font};
 
@@ -89,7 +92,7 @@ const DASHES: [&str; 6] = ["", "8 4", "2 3", "10 3 2 3", "4 4", "14 4 4 4"];
 const POINT_BUDGET: usize = 10_000;
 
 /// The family name the font is registered under, and that the SVG asks for.
-const FONT_NAME: &str = "DejaVu Sans";
+pub(crate) const FONT_NAME: &str = "DejaVu Sans";
 /// The bundled font (licence in `assets/fonts/`).
 pub const FONT_BYTES: &[u8] = super::fonts::REGULAR.bytes;
 /// plotters' SVG backend writes a font size of `size / 1.24` pixels.
@@ -152,7 +155,7 @@ pub fn render(r: &Results, p: &FigurePoints) -> Result<Vec<Figure>, String> {
 }
 
 /// Registers the bundled font with plotters once per process.
-fn ensure_font() -> Result<(), String> {
+pub(crate) fn ensure_font() -> Result<(), String> {
     static REGISTERED: OnceLock<bool> = OnceLock::new();
     let ok =
         *REGISTERED.get_or_init(|| register_font(FONT_NAME, FontStyle::Normal, FONT_BYTES).is_ok());
@@ -459,7 +462,7 @@ fn lines(ctx: &Context) -> Result<Figure, String> {
     );
     finish(
         "figures/lines.svg",
-        "Fitted lines by group",
+        "How does each group's line run?",
         caption,
         svg,
         &layers,
@@ -672,7 +675,7 @@ fn limits(ctx: &Context) -> Result<Figure, String> {
     );
     finish(
         "figures/limits.svg",
-        "Limits and crossing points",
+        "When does each line reach its limit?",
         caption,
         svg,
         &layers,
@@ -710,7 +713,7 @@ fn residuals(ctx: &Context) -> Result<Figure, String> {
         Some(u) => format!("residual ({u})"),
         None => "residual".to_string(),
     };
-    let title = format!("Residuals of the {model} model");
+    let title = format!("Is the spread even? Residuals of the {model} model");
     let look = ctx.look();
     let mut layers = Vec::new();
     let svg = draw(width, height, &mut layers, |root, layers| {
@@ -751,7 +754,7 @@ fn residuals(ctx: &Context) -> Result<Figure, String> {
     );
     finish(
         "figures/residuals.svg",
-        "Residuals against fitted values",
+        "Is the spread even along the fitted values?",
         caption,
         svg,
         &layers,
@@ -781,7 +784,7 @@ fn normal_quantiles(ctx: &Context) -> Result<Figure, String> {
     let range = all.padded();
     let width = 520;
     let height = 520;
-    let title = "Standardized residuals against normal quantiles";
+    let title = "Do the residuals follow a normal curve?";
     let mut layers = Vec::new();
     let svg = draw(width, height, &mut layers, |root, layers| {
         let axes = Axes {
@@ -824,7 +827,7 @@ fn normal_quantiles(ctx: &Context) -> Result<Figure, String> {
     }
     finish(
         "figures/normal-quantiles.svg",
-        "Normal quantile plot of residuals",
+        "Do the residuals follow a normal curve?",
         caption,
         svg,
         &layers,
@@ -1036,7 +1039,7 @@ fn difference(ctx: &Context) -> Result<Figure, String> {
     }
     finish(
         "figures/difference.svg",
-        "Where the groups differ along the covariate",
+        "Where along the covariate do two groups differ?",
         caption,
         svg,
         &layers,
