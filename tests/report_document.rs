@@ -133,33 +133,42 @@ fn render(md: &str) -> Rendered {
     r
 }
 
+/// What every Markdown report must satisfy once rendered.
+fn check_markdown(stem: &str, md: &str, min_tables: usize) {
+    let r = render(md);
+    assert!(
+        r.tables.len() >= min_tables,
+        "{stem}: {} tables",
+        r.tables.len()
+    );
+    for (i, t) in r.tables.iter().enumerate() {
+        assert!(
+            t.iter().all(|&n| n == t[0]),
+            "{stem}: table {i} has rows of {t:?} cells"
+        );
+    }
+    assert!(!r.text.contains("\\`"), "{stem}: an escaped backtick shows");
+    assert!(!r.text.contains("**"), "{stem}: a literal ** shows");
+    assert!(!r.text.contains('`'), "{stem}: a backtick shows");
+    // The references are exactly the works cited in the text, in author–year
+    // order, each once.
+    let cited: Vec<&str> = Work::ALL
+        .iter()
+        .filter(|w| r.body.contains(w.short()))
+        .map(|w| w.entry())
+        .collect();
+    let mut sorted = cited.clone();
+    sorted.sort();
+    assert!(!r.references.is_empty(), "{stem}: no references");
+    assert_eq!(r.references, sorted, "{stem}: references against citations");
+}
+
 #[test]
 fn every_demo_report_renders_clean_tables_text_and_references() {
     let reports = demo_reports("md");
     for (stem, out) in &reports {
         let md = std::fs::read_to_string(out.join("report.md")).unwrap();
-        let r = render(&md);
-        assert!(r.tables.len() >= 5, "{stem}: {} tables", r.tables.len());
-        for (i, t) in r.tables.iter().enumerate() {
-            assert!(
-                t.iter().all(|&n| n == t[0]),
-                "{stem}: table {i} has rows of {t:?} cells"
-            );
-        }
-        assert!(!r.text.contains("\\`"), "{stem}: an escaped backtick shows");
-        assert!(!r.text.contains("**"), "{stem}: a literal ** shows");
-        assert!(!r.text.contains('`'), "{stem}: a backtick shows");
-        // The references are exactly the works cited in the text, in author–year
-        // order, each once.
-        let cited: Vec<&str> = Work::ALL
-            .iter()
-            .filter(|w| r.body.contains(w.short()))
-            .map(|w| w.entry())
-            .collect();
-        let mut sorted = cited.clone();
-        sorted.sort();
-        assert!(!r.references.is_empty(), "{stem}: no references");
-        assert_eq!(r.references, sorted, "{stem}: references against citations");
+        check_markdown(stem, &md, 5);
         // The PDF's data holds the same text: no escaped backtick there either.
         if let Ok(data) = std::fs::read_to_string(out.join("report-data.json")) {
             assert!(!data.contains("\\\\`"), "{stem}: report-data.json");
@@ -230,4 +239,21 @@ fn every_demo_pdf_is_bold_free_of_escapes_and_has_no_near_empty_page() {
             assert!(lines >= 8, "{stem}: page {} holds {lines} lines", i + 1);
         }
     }
+}
+
+#[test]
+fn the_diff_report_renders_clean_tables_text_and_references() {
+    let reports = demo_reports("diff");
+    let run = |s: &str| reports.iter().find(|(x, _)| x == s).unwrap().1.clone();
+    let (old, new) = (run("nursery-2025"), run("nursery-2026"));
+    let md = old.parent().unwrap().join("diff.md");
+    let o = Command::new(env!("CARGO_BIN_EXE_slopewise"))
+        .args(["diff"])
+        .args([&old, &new, &new])
+        .arg("--markdown")
+        .arg(&md)
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    check_markdown("diff", &std::fs::read_to_string(&md).unwrap(), 5);
 }

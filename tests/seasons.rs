@@ -569,8 +569,9 @@ fn markdown_escapes_a_hostile_label() {
     assert!(!md.contains("<script>") && !md.contains("<b>"));
     assert!(!md.lines().any(|l| l.starts_with("# heading")));
     assert!(!md.contains('\u{1b}'));
-    // The line break is written out, so the would-be heading stays inside the label.
-    assert!(md.contains(r"x \| \*bold\* \[link\](http://e) \<script\>\\u\{a\}\# heading"));
+    // The line break is written out (`\n`, shown as such), so the would-be heading
+    // stays inside the label.
+    assert!(md.contains(r"x \| \*bold\* \[link\](http://e) \<script\>\\n\# heading"));
     assert!(md.contains(r"n\|\*\_\<b\>\_\*"));
     // Every row of the slope table still has its 13 columns: 14 unescaped pipes.
     let unescaped = |l: &str| {

@@ -5,16 +5,13 @@
 
 use std::collections::BTreeMap;
 
+use super::cite::Work;
+use super::doc::{Align, Block, Builder, Document, Inline, Runs, aligns, prose, t, v};
+use super::write;
 use crate::number::{p_value, sig, trimmed};
-use crate::report::escape_markdown;
-use crate::seasons::{Comparison, Trend, num, p_phrase, plain, signed};
+use crate::seasons::{Comparison, Trend, num, p_phrase, plain};
 
-// Formatting shared by the renderers.
-
-/// A label for Markdown: control characters written out, then Markdown escaped.
-fn md(s: &str) -> String {
-    escape_markdown(&plain(s))
-}
+// Formatting shared by both documents.
 
 fn opt(x: Option<f64>) -> String {
     x.map_or_else(|| "n/a".into(), num)
@@ -88,261 +85,108 @@ fn effect_cell(significant: Option<bool>, p: Option<f64>, alpha: f64) -> String 
     )
 }
 
-/// How a column is aligned.
-#[derive(Clone, Copy, PartialEq)]
-enum Align {
-    Left,
-    Right,
+fn cell(s: impl Into<String>) -> Runs {
+    vec![t(s)]
 }
 
-/// A Markdown table; cells must already be escaped.
-fn md_table(header: &[&str], align: &[Align], rows: &[Vec<String>]) -> String {
-    let mut s = String::new();
-    s.push_str("| ");
-    s.push_str(&header.join(" | "));
-    s.push_str(" |\n|");
-    for a in align {
-        s.push_str(if *a == Align::Right { "---:|" } else { ":---|" });
-    }
-    s.push('\n');
-    for row in rows {
-        s.push_str("| ");
-        s.push_str(&row.join(" | "));
-        s.push_str(" |\n");
-    }
-    s
+fn vcell(s: impl Into<String>) -> Runs {
+    vec![v(s)]
 }
 
-/// A plain-text table with columns padded to their widest cell.
-fn text_table(header: &[&str], align: &[Align], rows: &[Vec<String>]) -> String {
-    let width = |s: &str| s.chars().count();
-    let mut widths: Vec<usize> = header.iter().map(|h| width(h)).collect();
-    for row in rows {
-        for (w, cell) in widths.iter_mut().zip(row) {
-            *w = (*w).max(width(cell));
-        }
-    }
-    let line = |cells: Vec<&str>| {
-        let mut out = String::new();
-        for (i, cell) in cells.iter().enumerate() {
-            if i > 0 {
-                out.push_str("  ");
-            }
-            let pad = " ".repeat(widths[i] - width(cell));
-            if align[i] == Align::Right {
-                out.push_str(&pad);
-                out.push_str(cell);
-            } else {
-                out.push_str(cell);
-                out.push_str(&pad);
-            }
-        }
-        let mut out = out.trim_end().to_string();
-        out.push('\n');
-        out
-    };
-    let mut s = line(header.to_vec());
-    s.push_str(&line(
-        widths
-            .iter()
-            .map(|w| "-".repeat(*w))
-            .collect::<Vec<_>>()
-            .iter()
-            .map(String::as_str)
-            .collect(),
-    ));
-    for row in rows {
-        s.push_str(&line(row.iter().map(String::as_str).collect()));
-    }
-    s
+fn header(names: &[&str]) -> Vec<Runs> {
+    names.iter().map(|n| cell(*n)).collect()
 }
 
-/// Underlined heading for plain text.
-fn text_heading(s: &mut String, title: &str, rule: char) {
-    s.push_str(title);
-    s.push('\n');
-    s.push_str(&rule.to_string().repeat(title.chars().count()));
-    s.push_str("\n\n");
-}
-
-// ---------------------------------------------------------------------------------
-// Comparison renderers. Both show the same tables from the same cells; only the
-// escaping and the table syntax differ.
-
-/// Which renderer a cell is for: it decides how labels are escaped.
-#[derive(Clone, Copy, PartialEq)]
-enum Target {
-    Markdown,
-    Text,
-}
-
-impl Target {
-    fn label(self, s: &str) -> String {
-        match self {
-            Target::Markdown => md(s),
-            Target::Text => plain(s),
-        }
-    }
-
-    fn table(self, header: &[&str], align: &[Align], rows: &[Vec<String>]) -> String {
-        match self {
-            Target::Markdown => md_table(header, align, rows),
-            Target::Text => text_table(header, align, rows),
-        }
-    }
-
-    fn heading(self, s: &mut String, title: &str) {
-        match self {
-            Target::Markdown => {
-                s.push_str("## ");
-                s.push_str(title);
-                s.push_str("\n\n");
-            }
-            Target::Text => text_heading(s, title, '-'),
-        }
-    }
-
-    fn bullet(self, s: &mut String, text: &str) {
-        s.push_str(match self {
-            Target::Markdown => "- ",
-            Target::Text => "  * ",
-        });
-        s.push_str(text);
-        s.push('\n');
-    }
-
-    fn strong(self, text: &str) -> String {
-        match self {
-            Target::Markdown => format!("**{text}**"),
-            Target::Text => text.to_uppercase(),
-        }
+fn capitalize(s: &str) -> String {
+    let mut c = s.chars();
+    match c.next() {
+        Some(first) => first.to_uppercase().chain(c).collect(),
+        None => String::new(),
     }
 }
 
-/// Markdown text of a note or flag: its labels went through `plain` already.
-fn prose(target: Target, text: &str) -> String {
-    match target {
-        Target::Markdown => escape_markdown(text),
-        Target::Text => text.to_string(),
+/// One table of change: a group, before and now, the change and its test.
+const CHANGE_ALIGN: &str = "lrrrrrrrrrrrl";
+
+fn notes(b: &mut Builder, notes: &[String]) {
+    if !notes.is_empty() {
+        b.section(vec![t("Notes")]);
+        b.push(Block::List(notes.iter().map(|n| prose(n)).collect()));
     }
 }
 
-fn render_comparison(c: &Comparison, target: Target) -> String {
-    let mut s = String::new();
-    let title = "Changes between two runs";
-    match target {
-        Target::Markdown => {
-            s.push_str("# ");
-            s.push_str(title);
-            s.push_str("\n\n");
-        }
-        Target::Text => text_heading(&mut s, title, '='),
-    }
-    let intro = [
-        format!("Before: {}", target.label(&c.old)),
-        format!("Now:    {}", target.label(&c.new)),
-    ];
-    for line in &intro {
-        s.push_str(line);
-        s.push_str(if target == Target::Markdown {
-            "  \n"
-        } else {
-            "\n"
-        });
-    }
-    s.push('\n');
-    let method = format!(
-        "Changes are now minus before. Each is tested as a difference between two \
-         independent estimates, t = change / sqrt(SE before² + SE now²), with \
-         Welch–Satterthwaite degrees of freedom (Welch 1947; Satterthwaite 1946), \
-         two-sided; significant when p < {}.",
-        level_text(c.alpha)
-    );
-    s.push_str(&prose(target, &method));
-    s.push_str("\n\n");
+/// The comparison of the last two runs as a document.
+pub fn comparison_document(c: &Comparison) -> Document {
+    let mut b = Builder::default();
+    b.para(vec![t("Before: "), v(&c.old)]);
+    b.para(vec![t("Now: "), v(&c.new)]);
+    b.para(vec![
+        t("Changes are now minus before. Each is tested as a difference between two independent estimates, t = change / sqrt(SE before² + SE now²), with Welch–Satterthwaite degrees of freedom ("),
+        Inline::Cite(Work::Welch1947),
+        t("; "),
+        Inline::Cite(Work::Satterthwaite1946),
+        t(format!(
+            "), two-sided; significant when p < {}.",
+            level_text(c.alpha)
+        )),
+    ]);
 
-    target.heading(&mut s, "Flags");
+    b.section(vec![t("Flags")]);
     let flags = c.flags();
     if flags.is_empty() {
-        s.push_str(&prose(
-            target,
-            &format!(
-                "Nothing flagged: no decision flipped and no change is significant at {}.",
-                level_text(c.alpha)
-            ),
-        ));
-        s.push('\n');
+        b.para(vec![t(format!(
+            "Nothing flagged: no decision flipped and no change is significant at {}.",
+            level_text(c.alpha)
+        ))]);
     } else {
-        for f in &flags {
-            target.bullet(&mut s, &prose(target, &capitalize(f)));
-        }
+        b.push(Block::List(
+            flags.iter().map(|f| prose(&capitalize(f))).collect(),
+        ));
     }
-    s.push('\n');
 
-    target.heading(&mut s, "Decisions");
+    b.section(vec![t("Decisions")]);
     let gate = &c.decisions.equal_slopes;
     let effect = &c.decisions.group_effect;
-    let flip = |b: bool| {
-        if b {
-            target.strong("flipped")
+    let flip = |x: bool| {
+        if x {
+            vec![Inline::Strong("flipped".into())]
         } else {
-            "same".into()
+            cell("same")
         }
     };
-    let rows = vec![
+    b.table_aligned(
+        header(&["Decision", "Before", "Now", "Change"]),
+        vec![Align::Left; 4],
         vec![
-            "Slopes taken as equal".to_string(),
-            prose(target, &gate_cell(gate.homogeneous_old, gate.p_old)),
-            prose(target, &gate_cell(gate.homogeneous_new, gate.p_new)),
-            flip(gate.flipped),
+            vec![
+                cell("Slopes taken as equal"),
+                cell(gate_cell(gate.homogeneous_old, gate.p_old)),
+                cell(gate_cell(gate.homogeneous_new, gate.p_new)),
+                flip(gate.flipped),
+            ],
+            vec![
+                cell("Groups differ (common slope)"),
+                cell(effect_cell(
+                    effect.significant_old,
+                    effect.p_old,
+                    effect.alpha_old,
+                )),
+                cell(effect_cell(
+                    effect.significant_new,
+                    effect.p_new,
+                    effect.alpha_new,
+                )),
+                flip(effect.flipped),
+            ],
         ],
-        vec![
-            "Groups differ (common slope)".to_string(),
-            prose(
-                target,
-                &effect_cell(effect.significant_old, effect.p_old, effect.alpha_old),
-            ),
-            prose(
-                target,
-                &effect_cell(effect.significant_new, effect.p_new, effect.alpha_new),
-            ),
-            flip(effect.flipped),
-        ],
-    ];
-    s.push_str(&target.table(
-        &["Decision", "Before", "Now", "Change"],
-        &[Align::Left; 4],
-        &rows,
-    ));
-    s.push('\n');
+    );
 
-    target.heading(&mut s, "Slope of each group");
+    b.section(vec![t("Slope of each group")]);
     if c.slopes.is_empty() {
-        s.push_str("No group is in both runs.\n\n");
+        b.para(vec![t("No group is in both runs.")]);
     } else {
-        let rows: Vec<Vec<String>> = c
-            .slopes
-            .iter()
-            .map(|g| {
-                vec![
-                    target.label(&g.level),
-                    g.n_old.to_string(),
-                    g.n_new.to_string(),
-                    num(g.slope_old),
-                    opt(g.se_old),
-                    num(g.slope_new),
-                    opt(g.se_new),
-                    signed(g.change),
-                    opt(g.se),
-                    opt_t(g.t),
-                    opt(g.df),
-                    opt_p(g.p_value),
-                    verdict(g.significant).into(),
-                ]
-            })
-            .collect();
-        s.push_str(&target.table(
-            &[
+        b.table_aligned(
+            header(&[
                 "Group",
                 "n before",
                 "n now",
@@ -356,53 +200,46 @@ fn render_comparison(c: &Comparison, target: Target) -> String {
                 "df",
                 "p",
                 "Significant",
-            ],
-            &change_align(),
-            &rows,
-        ));
-        s.push('\n');
+            ]),
+            aligns(CHANGE_ALIGN),
+            c.slopes
+                .iter()
+                .map(|g| {
+                    vec![
+                        vcell(&g.level),
+                        cell(g.n_old.to_string()),
+                        cell(g.n_new.to_string()),
+                        cell(num(g.slope_old)),
+                        cell(opt(g.se_old)),
+                        cell(num(g.slope_new)),
+                        cell(opt(g.se_new)),
+                        cell(crate::seasons::signed(g.change)),
+                        cell(opt(g.se)),
+                        cell(opt_t(g.t)),
+                        cell(opt(g.df)),
+                        cell(opt_p(g.p_value)),
+                        cell(verdict(g.significant)),
+                    ]
+                })
+                .collect(),
+        );
     }
 
-    target.heading(&mut s, "Adjusted means");
+    b.section(vec![t("Adjusted means")]);
     let am = &c.adjusted_means;
     if let Some(reason) = &am.reason {
-        s.push_str(&prose(target, reason));
-        s.push_str("\n\n");
+        b.para(prose(reason));
     } else if am.means.is_empty() {
-        s.push_str("No group has an adjusted mean in both runs.\n\n");
+        b.para(vec![t("No group has an adjusted mean in both runs.")]);
     } else {
-        s.push_str(&prose(
-            target,
-            &format!(
-                "Both runs give the means at covariate = {}; each mean's degrees of freedom \
-                 are its run's common-slope model's n − k − 1.",
-                trimmed(am.adjust_at_old, 6)
-            ),
-        ));
-        s.push_str("\n\n");
-        let rows: Vec<Vec<String>> = am
-            .means
-            .iter()
-            .map(|m| {
-                vec![
-                    target.label(&m.level),
-                    num(m.mean_old),
-                    opt(m.se_old),
-                    num(m.mean_new),
-                    opt(m.se_new),
-                    signed(m.change),
-                    opt(m.se),
-                    opt_t(m.t),
-                    opt(m.df),
-                    opt_p(m.p_value),
-                    verdict(m.significant).into(),
-                ]
-            })
-            .collect();
-        let mut align = change_align();
+        b.para(vec![t(format!(
+            "Both runs give the means at covariate = {}; each mean's degrees of freedom are its run's common-slope model's n − k − 1.",
+            trimmed(am.adjust_at_old, 6)
+        ))]);
+        let mut align = aligns(CHANGE_ALIGN);
         align.drain(1..3);
-        s.push_str(&target.table(
-            &[
+        b.table_aligned(
+            header(&[
                 "Group",
                 "Mean before",
                 "SE",
@@ -414,217 +251,197 @@ fn render_comparison(c: &Comparison, target: Target) -> String {
                 "df",
                 "p",
                 "Significant",
-            ],
-            &align,
-            &rows,
-        ));
-        s.push('\n');
-    }
-
-    target.heading(&mut s, "Groups");
-    if c.groups_added.is_empty() && c.groups_removed.is_empty() {
-        s.push_str("The same groups in both runs.\n");
-    } else {
-        let list = |v: &[String]| {
-            if v.is_empty() {
-                "none".to_string()
-            } else {
-                v.iter()
-                    .map(|l| target.label(l))
-                    .collect::<Vec<_>>()
-                    .join(", ")
-            }
-        };
-        target.bullet(&mut s, &format!("New this run: {}", list(&c.groups_added)));
-        target.bullet(
-            &mut s,
-            &format!("Gone this run: {}", list(&c.groups_removed)),
+            ]),
+            align,
+            am.means
+                .iter()
+                .map(|m| {
+                    vec![
+                        vcell(&m.level),
+                        cell(num(m.mean_old)),
+                        cell(opt(m.se_old)),
+                        cell(num(m.mean_new)),
+                        cell(opt(m.se_new)),
+                        cell(crate::seasons::signed(m.change)),
+                        cell(opt(m.se)),
+                        cell(opt_t(m.t)),
+                        cell(opt(m.df)),
+                        cell(opt_p(m.p_value)),
+                        cell(verdict(m.significant)),
+                    ]
+                })
+                .collect(),
         );
     }
-    s.push('\n');
 
-    target.heading(&mut s, "Data and provenance");
+    b.section(vec![t("Groups")]);
+    if c.groups_added.is_empty() && c.groups_removed.is_empty() {
+        b.para(vec![t("The same groups in both runs.")]);
+    } else {
+        let list = |lead: &str, labels: &[String]| {
+            let mut runs = vec![t(lead)];
+            if labels.is_empty() {
+                runs.push(t("none"));
+            }
+            for (i, l) in labels.iter().enumerate() {
+                if i > 0 {
+                    runs.push(t(", "));
+                }
+                runs.push(v(l));
+            }
+            runs
+        };
+        b.push(Block::List(vec![
+            list("New this run: ", &c.groups_added),
+            list("Gone this run: ", &c.groups_removed),
+        ]));
+    }
+
+    b.section(vec![t("Data and provenance")]);
     let d = &c.data;
-    let changed = |old: &str, new: &str| {
-        if old == new {
-            "same".to_string()
+    let changed = |same: bool| {
+        if same {
+            cell("same")
         } else {
-            target.strong("changed")
+            vec![Inline::Strong("changed".into())]
         }
     };
-    let rows = vec![
+    b.table_aligned(
+        header(&["", "Before", "Now", "Change"]),
+        vec![Align::Left; 4],
         vec![
-            "Rows read".to_string(),
-            d.rows_read_old.to_string(),
-            d.rows_read_new.to_string(),
-            changed(&d.rows_read_old.to_string(), &d.rows_read_new.to_string()),
+            vec![
+                cell("Rows read"),
+                cell(d.rows_read_old.to_string()),
+                cell(d.rows_read_new.to_string()),
+                changed(d.rows_read_old == d.rows_read_new),
+            ],
+            vec![
+                cell("Rows used"),
+                cell(d.rows_used_old.to_string()),
+                cell(d.rows_used_new.to_string()),
+                changed(d.rows_used_old == d.rows_used_new),
+            ],
+            vec![
+                cell("Rows dropped"),
+                cell(dropped(&d.rows_dropped_old)),
+                cell(dropped(&d.rows_dropped_new)),
+                changed(d.rows_dropped_old == d.rows_dropped_new),
+            ],
+            vec![
+                cell("Data SHA-256"),
+                cell(short_hash(&d.data_sha256_old)),
+                cell(short_hash(&d.data_sha256_new)),
+                changed(d.data_sha256_old == d.data_sha256_new),
+            ],
+            vec![
+                cell("Plan SHA-256"),
+                cell(short_hash(&d.plan_sha256_old)),
+                cell(short_hash(&d.plan_sha256_new)),
+                changed(d.plan_sha256_old == d.plan_sha256_new),
+            ],
+            vec![
+                cell("Tool version"),
+                vcell(&d.tool_version_old),
+                vcell(&d.tool_version_new),
+                changed(d.tool_version_old == d.tool_version_new),
+            ],
         ],
-        vec![
-            "Rows used".to_string(),
-            d.rows_used_old.to_string(),
-            d.rows_used_new.to_string(),
-            changed(&d.rows_used_old.to_string(), &d.rows_used_new.to_string()),
-        ],
-        vec![
-            "Rows dropped".to_string(),
-            prose(target, &dropped(&d.rows_dropped_old)),
-            prose(target, &dropped(&d.rows_dropped_new)),
-            if d.rows_dropped_old == d.rows_dropped_new {
-                "same".into()
-            } else {
-                target.strong("changed")
-            },
-        ],
-        vec![
-            "Data SHA-256".to_string(),
-            prose(target, &short_hash(&d.data_sha256_old)),
-            prose(target, &short_hash(&d.data_sha256_new)),
-            changed(&d.data_sha256_old, &d.data_sha256_new),
-        ],
-        vec![
-            "Plan SHA-256".to_string(),
-            prose(target, &short_hash(&d.plan_sha256_old)),
-            prose(target, &short_hash(&d.plan_sha256_new)),
-            changed(&d.plan_sha256_old, &d.plan_sha256_new),
-        ],
-        vec![
-            "Tool version".to_string(),
-            target.label(&d.tool_version_old),
-            target.label(&d.tool_version_new),
-            changed(&d.tool_version_old, &d.tool_version_new),
-        ],
-    ];
-    s.push_str(&target.table(&["", "Before", "Now", "Change"], &[Align::Left; 4], &rows));
-
-    if !c.notes.is_empty() {
-        s.push('\n');
-        target.heading(&mut s, "Notes");
-        for n in &c.notes {
-            target.bullet(&mut s, &prose(target, n));
-        }
-    }
-    s
-}
-
-fn change_align() -> Vec<Align> {
-    let mut a = vec![Align::Left];
-    a.extend([Align::Right; 11]);
-    a.push(Align::Left);
-    a
-}
-
-fn capitalize(s: &str) -> String {
-    let mut c = s.chars();
-    match c.next() {
-        Some(first) => first.to_uppercase().chain(c).collect(),
-        None => String::new(),
-    }
+    );
+    notes(&mut b, &c.notes);
+    b.section(vec![t("References")]);
+    b.push(Block::References(Vec::new()));
+    let mut doc = Document {
+        title: "Changes between two runs".into(),
+        subtitle: Vec::new(),
+        footer: String::new(),
+        blocks: b.blocks,
+    };
+    doc.resolve_references();
+    doc
 }
 
 /// The comparison as Markdown, for a file or a review.
 pub fn comparison_markdown(c: &Comparison) -> String {
-    render_comparison(c, Target::Markdown)
+    write::markdown::write(&comparison_document(c))
 }
 
 /// The comparison as plain terminal text: aligned columns, no colour.
 pub fn comparison_text(c: &Comparison) -> String {
-    render_comparison(c, Target::Text)
+    write::text::write(&comparison_document(c))
 }
 
-// ---------------------------------------------------------------------------------
-// Trend renderers.
-
-fn render_trend(t: &Trend, target: Target) -> String {
-    let mut s = String::new();
-    let title = "Slopes by season";
-    match target {
-        Target::Markdown => {
-            s.push_str("# ");
-            s.push_str(title);
-            s.push_str("\n\n");
-        }
-        Target::Text => text_heading(&mut s, title, '='),
-    }
-    s.push_str(&prose(
-        target,
-        &format!(
-            "Each group's slope of {} on {} in each run, in the order given, with its {}% \
-             interval (t with n − 2 df, from the group's own fit).",
-            plain(&t.response),
-            plain(&t.covariate),
-            level_text(100.0 * (1.0 - t.alpha))
-        ),
-    ));
-    s.push_str("\n\n");
+/// Each group's slope across the runs as a document.
+pub fn trend_document(tr: &Trend) -> Document {
+    let mut b = Builder::default();
+    b.para(vec![
+        t("Each group's slope of "),
+        v(&tr.response),
+        t(" on "),
+        v(&tr.covariate),
+        t(format!(
+            " in each run, in the order given, with its {}% interval (t with n − 2 df, from the group's own fit).",
+            level_text(100.0 * (1.0 - tr.alpha))
+        )),
+    ]);
     let mut rows = Vec::new();
-    for g in &t.groups {
+    for g in &tr.groups {
         for p in &g.seasons {
             rows.push(match p.n {
                 None => vec![
-                    target.label(&g.level),
-                    target.label(&p.season),
-                    "absent".into(),
-                    String::new(),
-                    String::new(),
-                    String::new(),
+                    vcell(&g.level),
+                    vcell(&p.season),
+                    cell("absent"),
+                    cell(""),
+                    cell(""),
+                    cell(""),
                 ],
                 Some(n) => vec![
-                    target.label(&g.level),
-                    target.label(&p.season),
-                    n.to_string(),
-                    opt(p.slope),
-                    opt(p.se),
-                    ci_text(p.slope_ci),
+                    vcell(&g.level),
+                    vcell(&p.season),
+                    cell(n.to_string()),
+                    cell(opt(p.slope)),
+                    cell(opt(p.se)),
+                    cell(ci_text(p.slope_ci)),
                 ],
             });
         }
     }
-    s.push_str(&target.table(
-        &["Group", "Run", "n", "Slope", "SE", "Interval"],
-        &[
-            Align::Left,
-            Align::Left,
-            Align::Right,
-            Align::Right,
-            Align::Right,
-            Align::Left,
-        ],
-        &rows,
-    ));
-    s.push('\n');
-    target.heading(&mut s, "Equal-slopes gate by run");
-    let rows: Vec<Vec<String>> = t
-        .gates
-        .iter()
-        .map(|g| {
-            vec![
-                target.label(&g.season),
-                yes_no(g.homogeneous).into(),
-                opt_p(g.p_value),
-            ]
-        })
-        .collect();
-    s.push_str(&target.table(
-        &["Run", "Slopes taken as equal", "p"],
-        &[Align::Left, Align::Left, Align::Right],
-        &rows,
-    ));
-    if !t.notes.is_empty() {
-        s.push('\n');
-        target.heading(&mut s, "Notes");
-        for n in &t.notes {
-            target.bullet(&mut s, &prose(target, n));
-        }
+    b.table_aligned(
+        header(&["Group", "Run", "n", "Slope", "SE", "Interval"]),
+        aligns("llrrrl"),
+        rows,
+    );
+    b.section(vec![t("Equal-slopes gate by run")]);
+    b.table_aligned(
+        header(&["Run", "Slopes taken as equal", "p"]),
+        aligns("llr"),
+        tr.gates
+            .iter()
+            .map(|g| {
+                vec![
+                    vcell(&g.season),
+                    cell(yes_no(g.homogeneous)),
+                    cell(opt_p(g.p_value)),
+                ]
+            })
+            .collect(),
+    );
+    notes(&mut b, &tr.notes);
+    Document {
+        title: "Slopes by season".into(),
+        subtitle: Vec::new(),
+        footer: String::new(),
+        blocks: b.blocks,
     }
-    s
 }
 
 /// The trend table as Markdown: one row per group and run.
-pub fn trend_markdown(t: &Trend) -> String {
-    render_trend(t, Target::Markdown)
+pub fn trend_markdown(tr: &Trend) -> String {
+    write::markdown::write(&trend_document(tr))
 }
 
 /// The trend table as plain terminal text: aligned columns, no colour.
-pub fn trend_text(t: &Trend) -> String {
-    render_trend(t, Target::Text)
+pub fn trend_text(tr: &Trend) -> String {
+    write::text::write(&trend_document(tr))
 }
