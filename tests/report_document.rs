@@ -95,6 +95,12 @@ fn render(md: &str) -> Rendered {
     let mut in_refs = false;
     let mut item: Option<String> = None;
     for ev in Parser::new_ext(md, Options::ENABLE_TABLES) {
+        if matches!(ev, Event::End(_)) {
+            r.text.push(' ');
+            if !in_refs {
+                r.body.push(' ');
+            }
+        }
         match ev {
             Event::Start(Tag::Table(_)) => r.tables.push(Vec::new()),
             Event::Start(Tag::TableHead) | Event::Start(Tag::TableRow) => cells = 0,
@@ -113,19 +119,21 @@ fn render(md: &str) -> Rendered {
             Event::Start(Tag::Item) if in_refs => item = Some(String::new()),
             Event::End(TagEnd::Item) if in_refs => r.references.push(item.take().unwrap()),
             Event::Text(s) | Event::Code(s) => {
+                // A parser may cut one text at an escape: the pieces join as they
+                // read, and blocks are kept apart by the space added at their end.
                 r.text.push_str(&s);
-                r.text.push(' ');
                 if in_heading {
                     heading.push_str(&s);
                 }
                 match item.as_mut() {
                     Some(i) => i.push_str(&s),
-                    None if !in_refs => {
-                        r.body.push_str(&s);
-                        r.body.push(' ');
-                    }
+                    None if !in_refs => r.body.push_str(&s),
                     None => {}
                 }
+            }
+            Event::SoftBreak | Event::HardBreak => {
+                r.text.push(' ');
+                r.body.push(' ');
             }
             _ => {}
         }
@@ -198,9 +206,15 @@ fn the_nursery_report_cites_no_work_it_does_not_use() {
     );
 }
 
-/// A tool's standard output, or None when it is not installed.
+/// A tool's standard output, or None when it is not installed. `pdftotext` gets
+/// `-` after the file, so it prints instead of writing a file beside the PDF.
 fn tool(name: &str, args: &[&str], file: &Path) -> Option<String> {
-    let o = Command::new(name).args(args).arg(file).output().ok()?;
+    let mut cmd = Command::new(name);
+    cmd.args(args).arg(file);
+    if name == "pdftotext" {
+        cmd.arg("-");
+    }
+    let o = cmd.output().ok()?;
     assert!(o.status.success(), "{name} failed on {}", file.display());
     Some(String::from_utf8_lossy(&o.stdout).into_owned())
 }
@@ -228,6 +242,10 @@ fn every_demo_pdf_is_bold_free_of_escapes_and_has_no_near_empty_page() {
             "{stem}: no bold face\n{fonts}"
         );
         let text = tool("pdftotext", &["-layout"], &pdf).unwrap();
+        assert!(
+            text.contains("In brief"),
+            "{stem}: no text read from the PDF"
+        );
         assert!(!text.contains("\\`"), "{stem}: an escaped backtick shows");
         // pdftotext separates pages with a form feed; the last page may be short.
         let pages: Vec<&str> = text
@@ -256,4 +274,58 @@ fn the_diff_report_renders_clean_tables_text_and_references() {
         .unwrap();
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     check_markdown("diff", &std::fs::read_to_string(&md).unwrap(), 5);
+}
+
+#[test]
+fn labels_differing_only_in_whitespace_stay_apart_in_every_output() {
+    // Invented rows: three groups whose labels differ only in a line break, a space
+    // and a doubled space.
+    let dir = std::env::temp_dir().join(format!("slopewise-ws-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let mut csv = String::from("g,x,y\n");
+    for (k, label) in ["\"new\nline\"", "new line", "new  line"]
+        .iter()
+        .enumerate()
+    {
+        for i in 0..6 {
+            let x = i as f64;
+            let y = 1.0 + k as f64 + 0.5 * x + [0.1, -0.2, 0.15, -0.05, 0.2, -0.1][i];
+            csv.push_str(&format!("{label},{x},{y}\n"));
+        }
+    }
+    std::fs::write(dir.join("d.csv"), csv).unwrap();
+    let formats = if typst_present() {
+        "[\"markdown\", \"json\", \"pdf\"]"
+    } else {
+        "[\"markdown\", \"json\"]"
+    };
+    std::fs::write(
+        dir.join("p.toml"),
+        format!(
+            "title = \"ws\"\n[data]\npath = \"d.csv\"\n[model]\nresponse = \"y\"\ncovariate = \"x\"\ngroup = \"g\"\n[report]\nformats = {formats}\n"
+        ),
+    )
+    .unwrap();
+    let out = dir.join("out");
+    run(&dir.join("p.toml"), &out, &dir);
+    let md = render(&std::fs::read_to_string(out.join("report.md")).unwrap()).text;
+    for shown in ["new\\nline", "new line", "new \\sline"] {
+        assert!(md.contains(shown), "report.md lacks {shown}");
+    }
+    let svg = std::fs::read_to_string(out.join("figures/lines.svg")).unwrap();
+    for shown in ["new\\nline", "new line", "new \\sline"] {
+        assert!(svg.contains(shown), "lines.svg lacks {shown}");
+    }
+    if typst_present() {
+        let data = std::fs::read_to_string(out.join("report-data.json")).unwrap();
+        assert!(data.contains("new\\\\nline") && data.contains("new \\\\sline"));
+        if let Some(text) = tool("pdftotext", &[], &out.join("report.pdf")) {
+            assert!(
+                text.contains("new\\nline") && text.contains("new \\sline"),
+                "{text}"
+            );
+        }
+    }
+    let _ = std::fs::remove_dir_all(&dir);
 }

@@ -117,7 +117,7 @@ pub(super) fn difference(ctx: &Context) -> Result<Figure, String> {
             xs.add(observed.1);
             let xr = xs.padded();
             let yr = ys.padded();
-            let title = format!("{} − {}", region.a, region.b);
+            let title = format!("{} − {}", shown_label(&region.a), shown_label(&region.b));
             let axes = Axes {
                 x: xr,
                 y: yr,
@@ -189,8 +189,8 @@ pub(super) fn difference(ctx: &Context) -> Result<Figure, String> {
         let _ = write!(
             caption,
             " {} − {}: {}.",
-            region.a,
-            region.b,
+            shown_label(&region.a),
+            shown_label(&region.b),
             if stretches.is_empty() {
                 "no difference anywhere in the data".to_string()
             } else {

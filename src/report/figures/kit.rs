@@ -697,11 +697,17 @@ impl LegendItem {
     }
 }
 
+/// A group label as every figure shows it: whitespace and control characters made
+/// visible (as in the reports), so two labels that differ only there stay apart.
+pub(super) fn shown_label(label: &str) -> String {
+    crate::report::doc::visible(label)
+}
+
 pub(super) fn group_legend(r: &Results) -> Vec<LegendItem> {
     r.groups
         .iter()
         .enumerate()
-        .map(|(i, g)| LegendItem::new(&g.level, Swatch::Group(i)))
+        .map(|(i, g)| LegendItem::new(&shown_label(&g.level), Swatch::Group(i)))
         .collect()
 }
 

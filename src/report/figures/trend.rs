@@ -2,7 +2,7 @@
 //! look of the report's other figures (their palette and bundled font).
 
 use crate::number::{sig, trimmed};
-use crate::seasons::{Trend, plain};
+use crate::seasons::Trend;
 
 use super::{FONT_NAME, PALETTE, ensure_font};
 
@@ -39,7 +39,7 @@ const SHAPES: [Shape; 6] = [
 /// A label cut to `max` characters (keeping the end, where a path's distinctive part
 /// is) so axis labels do not overlap.
 fn clip_label(s: &str, max: usize) -> String {
-    let s = plain(s);
+    let s = crate::report::doc::visible(s);
     let n = s.chars().count();
     if n <= max {
         s
