@@ -254,17 +254,17 @@ pub fn prose(s: &str) -> Runs {
     out
 }
 
-/// A value with its whitespace and control characters made visible and unambiguous:
-/// `\n`, `\r`, `\t`, `\u{…}` for other control or invisible characters, `\s` for a
-/// space at either end or after another space, and `\\` for a backslash, so
-/// `"new\nline"`, `"new line"` and `"new  line"` are three different strings on the
-/// page. Every writer passes [`Inline::Value`] through this once.
+/// A value with its whitespace and control characters made visible: `\n`, `\r`,
+/// `\t`, `\u{…}` for other control or invisible characters, and `\s` for a space at
+/// either end or after another space, so `"new\nline"`, `"new line"` and
+/// `"new  line"` are three different strings on the page. A backslash stays as it is
+/// (a label such as `back\slash` prints literally). Every writer passes
+/// [`Inline::Value`] through this once.
 pub fn visible(s: &str) -> String {
     let chars: Vec<char> = s.chars().collect();
     let mut out = String::with_capacity(s.len());
     for (i, &c) in chars.iter().enumerate() {
         match c {
-            '\\' => out.push_str("\\\\"),
             '\n' => out.push_str("\\n"),
             '\r' => out.push_str("\\r"),
             '\t' => out.push_str("\\t"),
@@ -300,7 +300,6 @@ mod tests {
             "new  line",
             "new\tline",
             " new line",
-            "new\\nline",
         ];
         let shown: Vec<String> = labels.iter().map(|l| visible(l)).collect();
         for (i, a) in shown.iter().enumerate() {
@@ -313,6 +312,7 @@ mod tests {
         assert_eq!(visible("new  line"), "new \\sline");
         assert_eq!(visible("plain B-1"), "plain B-1");
         assert_eq!(visible("a\u{a0}b"), "a\\u{a0}b");
+        assert_eq!(visible("back\\slash"), "back\\slash");
     }
 
     #[test]
