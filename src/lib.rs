@@ -13,7 +13,8 @@
 //! 5. [`analysis`]: the procedure: equal-slopes gate, then the comparison that fits the
 //!    decision, with warnings. Pure: plan + dataset in, [`results::Results`] out.
 //! 6. [`results`]: the serde types of `results.json` (the public contract).
-//! 7. [`report`]: Results to Markdown (minijinja templates) and JSON bytes.
+//! 7. [`report`]: Results to one document model, written as Markdown, the PDF's Typst
+//!    data and plain text; figures; JSON bytes.
 //! 8. [`output`]: run folders that appear whole or not at all; [`audit`]: their
 //!    manifests, the comparison `verify` makes, signed approvals and the self-test
 //!    against published reference values.

@@ -78,7 +78,10 @@ fn every_demo_plan_runs_and_reruns_byte_for_byte() {
         if std::fs::read_to_string(plan).unwrap().contains("[limits]") {
             // The limits figure: lines, one-sided bounds and the limit.
             let svg = std::fs::read_to_string(a.join("figures/limits.svg")).unwrap();
-            assert!(svg.contains("Limits and crossing points"), "{stem}");
+            assert!(
+                svg.contains("When does each line reach its limit?"),
+                "{stem}"
+            );
             assert!(report.contains("figures/limits.svg"), "{stem}");
         }
         assert!(

@@ -18,7 +18,7 @@ use std::path::PathBuf;
 use serde_json::{Value, json};
 use slopewise::draft::{DraftError, MAX_GROUP_LABELS, SAMPLE_ROWS, draft_plan};
 use slopewise::plan::{self, Plan, PlanSpans};
-use slopewise::schema::PLAN_SCHEMA;
+use slopewise::schema::plan_schema;
 
 fn root() -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR"))
@@ -471,7 +471,7 @@ fn errors_say_what_is_wrong() {
 // (b) The schema.
 
 fn schema() -> Value {
-    serde_json::from_str(PLAN_SCHEMA).expect("templates/plan.schema.json is JSON")
+    serde_json::from_str(&plan_schema()).expect("the derived schema is JSON")
 }
 
 fn validator() -> jsonschema::Validator {
@@ -1014,4 +1014,23 @@ fn every_serde_key_and_value_is_in_the_schema() {
             assert_eq!(listed, names, "{name} against the schema's `{dotted}`");
         }
     }
+}
+
+#[test]
+fn schema_accepts_every_whole_plan_in_the_readme() {
+    // A README block is a whole plan when it has a title and the data and model
+    // tables; fragments (one table shown alone) are left to the loader's tests.
+    let v = validator();
+    let readme = std::fs::read_to_string(root().join("README.md")).unwrap();
+    let mut whole = 0;
+    for block in readme.split("```toml").skip(1) {
+        let text = block.split("```").next().unwrap();
+        if !(text.contains("title =") && text.contains("[data]") && text.contains("[model]")) {
+            continue;
+        }
+        whole += 1;
+        let errors = schema_errors(&v, &as_json(text));
+        assert!(errors.is_empty(), "README plan: {errors:?}\n{text}");
+    }
+    assert!(whole >= 1, "no whole plan found in the README");
 }

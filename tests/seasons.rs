@@ -10,11 +10,12 @@
 use std::path::Path;
 
 use slopewise::digest::sha256_hex;
-use slopewise::results::{Provenance, Results};
-use slopewise::seasons::{
-    self, Comparison, Run, comparison_markdown, comparison_text, trend_markdown, trend_svg,
-    trend_text,
+use slopewise::report::figures::trend_svg;
+use slopewise::report::seasons::{
+    comparison_markdown, comparison_text, trend_markdown, trend_text,
 };
+use slopewise::results::{Provenance, Results};
+use slopewise::seasons::{self, Comparison, Run};
 use slopewise::{analysis, data, plan};
 
 fn read(rel: &str) -> String {
@@ -569,8 +570,9 @@ fn markdown_escapes_a_hostile_label() {
     assert!(!md.contains("<script>") && !md.contains("<b>"));
     assert!(!md.lines().any(|l| l.starts_with("# heading")));
     assert!(!md.contains('\u{1b}'));
-    // The line break is written out, so the would-be heading stays inside the label.
-    assert!(md.contains(r"x \| \*bold\* \[link\](http://e) \<script\>\\u\{a\}\# heading"));
+    // The line break is written out (`\n`, shown as such), so the would-be heading
+    // stays inside the label.
+    assert!(md.contains(r"x \| \*bold\* \[link\](http://e) \<script\>\\n\# heading"));
     assert!(md.contains(r"n\|\*\_\<b\>\_\*"));
     // Every row of the slope table still has its 13 columns: 14 unescaped pipes.
     let unescaped = |l: &str| {

@@ -29,12 +29,12 @@ pub(super) fn diff(
     let mut md = String::new();
     if n > 2 {
         let trend = crate::seasons::trend(&runs, alpha);
-        text.push_str(&crate::seasons::trend_text(&trend));
+        text.push_str(&crate::report::seasons::trend_text(&trend));
         text.push('\n');
-        md.push_str(&crate::seasons::trend_markdown(&trend));
+        md.push_str(&crate::report::seasons::trend_markdown(&trend));
         md.push('\n');
         if let Some(path) = figure {
-            let svg = crate::seasons::trend_svg(&trend).map_err(|e| {
+            let svg = crate::report::figures::trend_svg(&trend).map_err(|e| {
                 Diagnostic::new(format!("the trend figure could not be drawn: {e}"))
             })?;
             write_new_file(path, svg.as_bytes())?;
@@ -44,8 +44,8 @@ pub(super) fn diff(
             "--figure draws a trend, which needs three or more runs",
         ));
     }
-    text.push_str(&crate::seasons::comparison_text(&comparison));
-    md.push_str(&crate::seasons::comparison_markdown(&comparison));
+    text.push_str(&crate::report::seasons::comparison_text(&comparison));
+    md.push_str(&crate::report::seasons::comparison_markdown(&comparison));
     say(&text);
     if let Some(path) = markdown {
         write_new_file(path, md.as_bytes())?;

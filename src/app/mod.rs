@@ -69,7 +69,7 @@ pub fn main() -> ExitCode {
         ),
         Command::Init { data, out } => init::init(&data, out.as_deref()),
         Command::Schema => {
-            say(crate::schema::PLAN_SCHEMA);
+            say(&crate::schema::plan_schema());
             Ok(())
         }
         Command::Completions { shell } => {

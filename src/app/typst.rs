@@ -10,12 +10,6 @@ pub const TYPST_VERSION: &str = "0.15.1";
 /// Environment variable naming the typst binary, when it is not `typst` on PATH.
 pub const TYPST_ENV: &str = "SLOPEWISE_TYPST";
 
-/// Font the PDF and the figures use, handed to typst so no system font is needed.
-const FONT: &[u8] = crate::report::figures::FONT_BYTES;
-
-/// The file name the font is handed to typst under.
-const FONT_FILE: &str = "DejaVuSans.ttf";
-
 /// The first line of `typst --version` (e.g. "typst 0.15.1 (…)"), for provenance;
 /// `None` when no typst runs (the PDF step then says why).
 pub(super) fn version() -> Option<String> {
@@ -30,9 +24,13 @@ pub(super) fn version() -> Option<String> {
     (!line.is_empty()).then(|| line.to_string())
 }
 
-/// SHA-256 of every font handed to typst, by the file name it gets.
+/// SHA-256 of every font handed to typst (the figures use the regular face too),
+/// by the file name it gets.
 pub(super) fn font_hashes() -> std::collections::BTreeMap<String, String> {
-    [(FONT_FILE.to_string(), crate::digest::sha256_hex(FONT))].into()
+    crate::report::fonts::ALL
+        .iter()
+        .map(|f| (f.file.to_string(), crate::report::fonts::sha256(*f)))
+        .collect()
 }
 
 /// SHA-256 of the Typst template the PDF is compiled from, by its file name.
@@ -54,8 +52,14 @@ pub(super) fn compile_pdf(staging: &Path) -> Result<(), Diagnostic> {
         let _ = std::fs::remove_dir_all(staging.join(".fonts"));
         let _ = std::fs::remove_file(staging.join("report.pdf.partial"));
     };
+    // The fonts the PDF and the figures use (regular, bold, oblique), handed to
+    // typst so no system font is needed and bold is truly bold.
     std::fs::create_dir_all(&fonts)
-        .and_then(|()| std::fs::write(fonts.join(FONT_FILE), FONT))
+        .and_then(|()| {
+            crate::report::fonts::ALL
+                .iter()
+                .try_for_each(|f| std::fs::write(fonts.join(f.file), f.bytes))
+        })
         .map_err(|e| Diagnostic::new(format!("cannot prepare the PDF fonts: {e}")))?;
     let epoch = std::env::var("SOURCE_DATE_EPOCH")
         .ok()

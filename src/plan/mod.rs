@@ -10,7 +10,7 @@ mod error;
 mod schema;
 
 pub use error::PlanError;
-pub use schema::{Comparisons, Format, Procedure, Regions, Transform};
+pub use schema::{Comparisons, Format, Procedure, Regions, Transform, derived_json_schema};
 
 use std::ops::Range;
 use toml::Spanned;

@@ -1,88 +1,209 @@
 //! Serde types that mirror the plan file one to one. Unknown keys are refused and
 //! every value keeps its byte span, so validation can point at it.
 
+use schemars::JsonSchema;
 use serde::Deserialize;
 use toml::Spanned;
 
-#[derive(Debug, Deserialize)]
+/// `model.adjust_at` as the schema describes it: the word "mean" or a number. The
+/// loader reads it as a TOML value and checks it itself.
+pub(super) struct AdjustAt;
+
+impl JsonSchema for AdjustAt {
+    fn schema_name() -> std::borrow::Cow<'static, str> {
+        "AdjustAt".into()
+    }
+    fn inline_schema() -> bool {
+        true
+    }
+    fn json_schema(_: &mut schemars::SchemaGenerator) -> schemars::Schema {
+        schemars::json_schema!({"anyOf": [{"const": "mean"}, {"type": "number"}]})
+    }
+}
+
+/// A slopewise plan: which CSV to read, which columns are the response, the covariate
+/// and the group, how to test and what to write. Paths are relative to the folder
+/// holding the plan file. Unknown keys are errors.
+#[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
+#[schemars(title = "slopewise plan")]
 pub(super) struct RawPlan {
+    /// Title of the report. Required; must not be blank.
+    #[schemars(with = "String", extend("pattern" = "\\S", "examples" = ["Seedling dry mass by nursery bed, 2026"]))]
     pub title: Spanned<String>,
+    /// Where the data are and how to read them.
+    #[schemars(with = "RawData")]
     pub data: Spanned<RawData>,
+    /// Which columns play which part. Response, covariate and group must be three
+    /// different columns.
+    #[schemars(with = "RawModel")]
     pub model: Spanned<RawModel>,
+    /// Levels and procedures of the tests.
+    #[schemars(with = "Option<RawTests>")]
     pub tests: Option<Spanned<RawTests>>,
+    /// Assumption checks and their options.
     pub checks: Option<RawChecks>,
+    /// Limits the mean response must respect: the report gives where each line's one-sided
+    /// confidence bound crosses them. At least one of `lower` and `upper`; lower
+    /// must be below upper.
+    #[schemars(with = "Option<RawLimits>", extend("examples" = [{"lower": 95.0, "confidence": 0.95}]))]
     pub limits: Option<Spanned<RawLimits>>,
+    /// What to write and where.
+    #[schemars(with = "Option<RawReport>")]
     pub report: Option<Spanned<RawReport>>,
 }
 
-#[derive(Debug, Deserialize)]
+#[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub(super) struct RawData {
+    /// CSV file with a header row, relative to the plan's folder. Required.
+    #[schemars(with = "String", extend("pattern" = "\\S", "examples" = ["../demo-data/nursery-2026.csv"]))]
     pub path: Spanned<String>,
+    /// Cell texts read as missing, compared after trimming spaces. Rows with a missing
+    /// response, covariate or group are dropped and counted by reason.
+    #[schemars(with = "Option<Vec<String>>", extend("default" = ["", "NA"], "examples" = [["", "NA", "-"]]))]
     pub missing: Option<Spanned<Vec<String>>>,
+    /// Optional pin of the data file: 64 hexadecimal digits of its SHA-256 (the first
+    /// field of `sha256sum FILE`). The run refuses a file that differs.
+    #[schemars(with = "Option<String>", extend("pattern" = "^\\s*[0-9A-Fa-f]{64}\\s*$", "examples" = ["e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855"]))]
     pub sha256: Option<Spanned<String>>,
+    /// Field delimiter of the CSV: "," (the default), ";", "tab" (or "\t") or "|".
+    #[schemars(with = "Option<String>", extend("enum" = [",", ";", "tab", "\t", "|"], "default" = ",", "examples" = [";"]))]
     pub delimiter: Option<Spanned<String>>,
     #[serde(default)]
+    /// Row filters, written as [[data.keep]] tables; a row must pass all of them. Each
+    /// names a column and exactly one of `equals` or `one_of`.
+    #[schemars(with = "Vec<RawKeep>", extend("examples" = [[{"column": "status", "equals": "measured"}]]))]
     pub keep: Vec<Spanned<RawKeep>>,
 }
 
-#[derive(Debug, Deserialize)]
+/// One row filter: keep the rows whose `column` holds an accepted text.
+#[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
+#[schemars(extend("oneOf" = [{"required": ["equals"]}, {"required": ["one_of"]}]))]
 pub(super) struct RawKeep {
+    /// Column whose text (trimmed) is compared.
+    #[schemars(with = "String", extend("pattern" = "\\S", "examples" = ["status"]))]
     pub column: Spanned<String>,
+    /// Keep the rows whose column holds exactly this text. Use either this or `one_of`.
+    #[schemars(with = "Option<String>", extend("examples" = ["measured"]))]
     pub equals: Option<Spanned<String>>,
+    /// Keep the rows whose column holds any of these texts. Use either this or
+    /// `equals`; must not be empty.
+    #[schemars(with = "Option<Vec<String>>", extend("minItems" = 1, "examples" = [["measured", "remeasured"]]))]
     pub one_of: Option<Spanned<Vec<String>>>,
 }
 
-#[derive(Debug, Deserialize)]
+#[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub(super) struct RawModel {
+    /// Numeric column: the y of each group's line. Required.
+    #[schemars(with = "String", extend("pattern" = "\\S", "examples" = ["dry_mass_g"]))]
     pub response: Spanned<String>,
+    /// Numeric column: the x of each group's line. Required; not the response.
+    #[schemars(with = "String", extend("pattern" = "\\S", "examples" = ["height_cm"]))]
     pub covariate: Spanned<String>,
+    /// Column of group labels, read as text (for example a bed, site or lot). Required;
+    /// neither the response nor the covariate.
+    #[schemars(with = "String", extend("pattern" = "\\S", "examples" = ["bed"]))]
     pub group: Spanned<String>,
+    /// Optional order of the groups; the first is the reference. At least two, each
+    /// once; every listed level must occur in the data and no other may. Default: all
+    /// labels, sorted.
+    #[schemars(with = "Option<Vec<String>>", extend("minItems" = 2, "uniqueItems" = true, "examples" = [["north-1", "north-2", "south-1"]]))]
     pub levels: Option<Spanned<Vec<Spanned<String>>>>,
+    /// Covariate value at which adjusted means are given: "mean" (the mean of the
+    /// covariate over the rows used) or a number on the transformed covariate scale.
+    #[schemars(with = "Option<AdjustAt>", extend("default" = "mean", "examples" = ["mean", 25.0]))]
     pub adjust_at: Option<Spanned<toml::Value>>,
+    /// Transforms applied before fitting. "log" and "log10" need positive values,
+    /// "sqrt" values of zero or more.
+    #[schemars(extend("examples" = [{"response": "none", "covariate": "log"}]))]
     pub transform: Option<RawTransform>,
+    /// Optional units of the columns as measured, shown in axis titles.
+    #[schemars(extend("examples" = [{"response": "g", "covariate": "cm"}]))]
     pub units: Option<RawUnits>,
 }
 
-#[derive(Debug, Deserialize)]
+#[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
+#[schemars(extend("examples" = [{"response": "g", "covariate": "cm"}]))]
 pub(super) struct RawUnits {
+    /// Unit of the response, for example "g".
+    #[schemars(extend("examples" = ["g"]))]
     pub response: Option<String>,
+    /// Unit of the covariate, for example "cm".
+    #[schemars(extend("examples" = ["cm"]))]
     pub covariate: Option<String>,
 }
 
-#[derive(Debug, Deserialize)]
+#[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
+#[schemars(extend("examples" = [{"response": "none", "covariate": "log"}]))]
 pub(super) struct RawTransform {
+    /// Transform of the response: "none", "log" (natural), "log10" or "sqrt".
+    #[schemars(with = "Option<Transform>", extend("default" = "none", "examples" = ["log"]))]
     pub response: Option<Spanned<Transform>>,
+    /// Transform of the covariate: "none", "log" (natural), "log10" or "sqrt".
+    #[schemars(with = "Option<Transform>", extend("default" = "none", "examples" = ["log"]))]
     pub covariate: Option<Spanned<Transform>>,
 }
 
-#[derive(Debug, Deserialize)]
+#[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub(super) struct RawTests {
+    /// Level of the group comparisons and of the intervals (which are at 1 - alpha).
+    /// Strictly between 0 and 1: write 0.05, not 5.
+    #[schemars(with = "Option<f64>", extend("exclusiveMinimum" = 0, "exclusiveMaximum" = 1, "default" = 0.05, "examples" = [0.01]))]
     pub alpha: Option<Spanned<f64>>,
+    /// Level of the equal-slopes gate: below it the slopes are taken to differ and the
+    /// groups are compared along the covariate instead of by adjusted means. Strictly
+    /// between 0 and 1.
+    #[schemars(with = "Option<f64>", extend("exclusiveMinimum" = 0, "exclusiveMaximum" = 1, "default" = 0.05, "examples" = [0.1]))]
     pub slopes_alpha: Option<Spanned<f64>>,
+    /// Multiplicity adjustment of the pairwise p-values: "none", "bonferroni", "holm"
+    /// (step-down) or "tukey-kramer" (studentized range over all groups).
+    #[schemars(with = "Option<Comparisons>", extend("default" = "holm", "examples" = ["holm"]))]
     pub comparisons: Option<Spanned<Comparisons>>,
+    /// Johnson-Neyman regions when slopes differ: "pointwise" (t at each covariate
+    /// value) or "simultaneous" (over the whole covariate range).
+    #[schemars(with = "Option<Regions>", extend("default" = "pointwise", "examples" = ["simultaneous"]))]
     pub regions: Option<Spanned<Regions>>,
+    /// Covariate values at which group differences are given when slopes differ.
+    /// Default: the covariate's quartiles. Must not be empty.
+    #[schemars(with = "Option<Vec<f64>>", extend("minItems" = 1, "examples" = [[20.0, 30.0]]))]
     pub compare_at: Option<Spanned<Vec<Spanned<f64>>>>,
+    /// How the model for the rest of the report (and for [limits]) is chosen: "equal-slopes-gate"
+    /// (the equal-slopes test at slopes_alpha) or "lot-pooling" (ICH Q1E,
+    /// 2003: equal slopes, then equal intercepts, each at pooling_alpha).
+    #[schemars(with = "Option<Procedure>", extend("default" = "equal-slopes-gate", "examples" = ["lot-pooling"]))]
     pub procedure: Option<Spanned<Procedure>>,
+    /// Level of both lot-pooling tests when procedure = "lot-pooling". Strictly between
+    /// 0 and 1.
+    #[schemars(with = "Option<f64>", extend("exclusiveMinimum" = 0, "exclusiveMaximum" = 1, "default" = 0.25, "examples" = [0.1]))]
     pub pooling_alpha: Option<Spanned<f64>>,
 }
 
-#[derive(Debug, Deserialize)]
+#[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
+#[schemars(extend("anyOf" = [{"required": ["lower"]}, {"required": ["upper"]}], "examples" = [{"lower": 95.0, "confidence": 0.95}]))]
 pub(super) struct RawLimits {
+    /// The mean response must stay at or above this value (on the response's scale as
+    /// measured).
+    #[schemars(with = "Option<f64>", extend("examples" = [95.0]))]
     pub lower: Option<Spanned<f64>>,
+    /// The mean response must stay at or below this value (on the response's scale as
+    /// measured).
+    #[schemars(with = "Option<f64>", extend("examples" = [105.0]))]
     pub upper: Option<Spanned<f64>>,
+    /// One-sided confidence of the bound compared with the limits, strictly between 0.5
+    /// and 1.
+    #[schemars(with = "Option<f64>", extend("exclusiveMinimum" = 0.5, "exclusiveMaximum" = 1, "default" = 0.95, "examples" = [0.99]))]
     pub confidence: Option<Spanned<f64>>,
 }
 
 /// How the model for the rest of the report is chosen.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum Procedure {
     /// The equal-slopes gate at `slopes_alpha`.
@@ -92,21 +213,30 @@ pub enum Procedure {
     LotPooling,
 }
 
-#[derive(Debug, Deserialize)]
+#[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub(super) struct RawChecks {
+    /// true: rerun without the rows beyond the influence cut-offs and show both results
+    /// side by side.
+    #[schemars(extend("default" = false, "examples" = [true]))]
     pub sensitivity: Option<bool>,
 }
 
-#[derive(Debug, Deserialize)]
+#[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub(super) struct RawReport {
+    /// Outputs to write, each once: "markdown" (report.md), "json" (results.json),
+    /// "pdf" (report.pdf, needs the typst program). Must not be empty.
+    #[schemars(with = "Option<Vec<Format>>", extend("minItems" = 1, "uniqueItems" = true, "default" = ["markdown", "json"], "examples" = [["markdown", "json"]]))]
     pub formats: Option<Spanned<Vec<Spanned<Format>>>>,
+    /// Output folder, relative to the plan's folder; `--out DIR` on the command line
+    /// overrides it.
+    #[schemars(with = "Option<String>", extend("pattern" = "\\S", "examples" = ["../reports/nursery-2026"]))]
     pub out: Option<Spanned<String>>,
 }
 
 /// A transform applied to a column before fitting.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "lowercase")]
 pub enum Transform {
     /// Values as read.
@@ -160,7 +290,7 @@ impl Transform {
 }
 
 /// Multiplicity adjustment for the pairwise p-values.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum Comparisons {
     /// Unadjusted p-values.
@@ -174,7 +304,7 @@ pub enum Comparisons {
 }
 
 /// Which Johnson–Neyman regions to report when slopes differ.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "lowercase")]
 pub enum Regions {
     /// Johnson & Neyman (1936): t at 1 − alpha/2 at each covariate value.
@@ -206,7 +336,7 @@ impl Comparisons {
 }
 
 /// An output format.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "lowercase")]
 pub enum Format {
     /// `report.md`.
@@ -226,4 +356,13 @@ impl Format {
             Format::Pdf => "pdf",
         }
     }
+}
+
+/// The JSON Schema of the plan, as schemars derives it from the types above
+/// (subschemas inlined, so each table's keys sit under its `properties`).
+pub fn derived_json_schema() -> serde_json::Value {
+    let generator = schemars::generate::SchemaSettings::draft2020_12()
+        .with(|s| s.inline_subschemas = true)
+        .into_generator();
+    generator.into_root_schema_for::<RawPlan>().to_value()
 }

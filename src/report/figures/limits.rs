@@ -1,0 +1,217 @@
+//! Figure: the lines crossings are read from, their one-sided bounds and the limits.
+
+#[allow(unused_imports)]
+use super::*;
+
+// ---------------------------------------------------------------------------
+// Limits: the lines the crossings are read from, their one-sided bounds, the limits.
+
+/// The mean and the one-sided bound's half-width at x for one limit entry, from
+/// the model the crossing used (same formulas as `separate_at` and `common_at`).
+pub(super) fn limit_line_at(
+    r: &Results,
+    level: &str,
+    model: &str,
+    t: f64,
+    x: f64,
+) -> Option<(f64, Option<f64>)> {
+    match model {
+        "pooled" => {
+            let l = &r.one_line;
+            let fit = l.intercept + l.slope * x;
+            let half = match (l.residual_sd, l.slope_se) {
+                (Some(s), Some(se)) => {
+                    let d = x - r.covariate_mean;
+                    Some(t * (s * s / l.n as f64 + d * d * se * se).sqrt())
+                }
+                _ => None,
+            };
+            Some((fit, half))
+        }
+        "common-slope" => {
+            let g = r.groups.iter().find(|g| g.level == level)?;
+            common_at(r, g, Some(t), x)
+        }
+        _ => {
+            let g = r.groups.iter().find(|g| g.level == level)?;
+            Some(separate_at(g, Some(t), x))
+        }
+    }
+}
+
+pub(super) fn limits(ctx: &Context) -> Result<Figure, String> {
+    let r = ctx.r;
+    let first = &r.limits[0];
+    let model = first.model.as_str();
+    // One line per level (the first side's entries name every line).
+    let entries: Vec<_> = r.limits.iter().filter(|c| c.side == first.side).collect();
+    let lo = entries
+        .iter()
+        .map(|c| c.observed_min)
+        .fold(f64::INFINITY, f64::min);
+    let reach = entries
+        .iter()
+        .map(|c| {
+            c.crossing
+                .filter(|x| x.is_finite())
+                .unwrap_or(c.observed_max)
+                .max(c.observed_max)
+        })
+        .fold(f64::NEG_INFINITY, f64::max);
+    let hi = reach + 0.05 * (reach - lo).max(1e-9);
+    let mut xs = Extent::default();
+    let mut ys = Extent::default();
+    xs.add(lo);
+    xs.add(hi);
+    let mut curves: Vec<(usize, Curve, f64)> = Vec::new();
+    for (k, c) in entries.iter().enumerate() {
+        let df = match model {
+            "pooled" => r.one_line.n as f64 - 2.0,
+            "common-slope" => r.common_slope.df,
+            _ => r
+                .groups
+                .iter()
+                .find(|g| g.level == c.level)
+                .map_or(0.0, |g| g.n as f64 - 2.0),
+        };
+        if !(df > 0.0) {
+            continue;
+        }
+        let t = t_quantile(c.confidence, df);
+        let color = if model == "pooled" {
+            0
+        } else {
+            r.groups
+                .iter()
+                .position(|g| g.level == c.level)
+                .unwrap_or(k)
+        };
+        let curve = curve(lo, hi, |x| {
+            limit_line_at(r, &c.level, model, t, x).unwrap_or((f64::NAN, None))
+        });
+        for &(_, y, h) in &curve {
+            ys.add(y);
+            if let Some(h) = h {
+                ys.add(y - h);
+                ys.add(y + h);
+            }
+        }
+        curves.push((color, curve, t));
+    }
+    for c in &r.limits {
+        ys.add(c.limit);
+    }
+    for pts in &ctx.points {
+        for p in pts {
+            ys.add(p[1]);
+        }
+    }
+    let (xr, yr) = (xs.padded(), ys.padded());
+    let mut items = if model == "pooled" {
+        vec![LegendItem::new(
+            "pooled line",
+            Swatch::Line(Stroke::new(PALETTE[0], 2.2, "")),
+        )]
+    } else {
+        group_legend(r)
+    };
+    items.push(LegendItem::new(
+        "one-sided bound",
+        Swatch::Line(Stroke::new(INK_HEX, 1.2, "2 3")),
+    ));
+    items.push(LegendItem::new(
+        "limit",
+        Swatch::Line(Stroke::new(REFERENCE, 1.6, "8 4")),
+    ));
+    let width = 640;
+    let panel_h = 420;
+    let legend = Legend::layout(&items, width as f64 - 40.0);
+    let height = panel_h + legend.height() as u32;
+    let level = number::trimmed(100.0 * first.confidence, 4);
+    let title = format!("Mean lines, one-sided {level}% bounds and limits");
+    let look = ctx.look();
+    let mut layers = Vec::new();
+    let svg = draw(width, height, &mut layers, |root, layers| {
+        let (top, bottom) = root.split_vertically(panel_h);
+        let axes = Axes {
+            x: xr,
+            y: yr,
+            x_title: &ctx.x_title,
+            y_title: &ctx.y_title,
+            title: &title,
+        };
+        let frame = panel(&top, &axes, layers, &|_| String::new())?;
+        let mut layer = String::new();
+        for (i, pts) in ctx.points.iter().enumerate() {
+            markers(
+                &mut layer,
+                &frame,
+                i,
+                look,
+                pts.iter().map(|p| (p[0], p[1])),
+            );
+        }
+        for c in &r.limits {
+            polyline(
+                &mut layer,
+                &frame,
+                &[(xr.0, c.limit), (xr.1, c.limit)],
+                &Stroke::new(REFERENCE, 1.6, "8 4"),
+            );
+        }
+        for (color, curve, _) in &curves {
+            let mean: Vec<(f64, f64)> = curve.iter().map(|&(x, y, _)| (x, y)).collect();
+            haloed(&mut layer, &frame, &mean, &group_stroke(*color, 2.2));
+            for sign in [-1.0, 1.0] {
+                let bound: Vec<(f64, f64)> = curve
+                    .iter()
+                    .filter_map(|&(x, y, h)| h.map(|h| (x, y + sign * h)))
+                    .collect();
+                // Only the side each limit is compared with.
+                let side = if sign < 0.0 { "lower" } else { "upper" };
+                if r.limits.iter().any(|c| c.side == side) {
+                    polyline(
+                        &mut layer,
+                        &frame,
+                        &bound,
+                        &Stroke::new(PALETTE[*color % PALETTE.len()], 1.2, "2 3"),
+                    );
+                }
+            }
+        }
+        place(&top, layers, layer)?;
+        let mut overlay = String::new();
+        legend.draw(&bottom, &mut overlay, &items)?;
+        place(&bottom, layers, overlay)
+    })?;
+    let crossings: Vec<String> = r
+        .limits
+        .iter()
+        .filter_map(|c| {
+            c.crossing
+                .map(|x| format!("{} {}: {}", c.level, c.side, number::sig(x, 4)))
+        })
+        .collect();
+    let caption = format!(
+        "Each line the crossings are read from ({}), its one-sided {level}% confidence bound of the mean, and the limits (dashed). Crossings: {}. {}",
+        match model {
+            "pooled" => "the pooled line",
+            "common-slope" => "parallel lines",
+            _ => "each group's own line",
+        },
+        if crossings.is_empty() {
+            "none".to_string()
+        } else {
+            crossings.join("; ")
+        },
+        ctx.points_sentence()
+    );
+    finish(
+        "figures/limits.svg",
+        "When does each line reach its limit?",
+        caption,
+        svg,
+        &layers,
+        (width, height),
+    )
+}

@@ -1,0 +1,123 @@
+//! "Groups on a common slope": the parallel-lines comparison, adjusted means and
+//! their pairwise differences.
+
+use super::{Ctx, cell, ci, int, num, num3, p, pair, peq, vcell};
+use crate::report::cite::Work;
+use crate::report::doc::{Builder, Inline, aligns, t, v};
+
+pub(super) fn section(b: &mut Builder, c: &Ctx) {
+    let r = c.r;
+    let cs = &r.common_slope;
+    let ge = &r.group_effect;
+    let at = num(Some(r.adjust_at));
+    b.section(vec![t("Groups on a common slope")]);
+    if !r.decision.homogeneous {
+        b.para(vec![
+            t("The slopes differ, so this comparison describes the groups at "),
+            v(&c.x),
+            t(format!(" = {at} only.")),
+        ]);
+    }
+    b.para(vec![t(format!(
+        "Common slope {} (SE {}, {} interval {}, {} df). Group effect given the common slope: F = {} on {} and {} df, {}; partial η² = {}.",
+        num(Some(cs.slope)),
+        num(cs.se),
+        c.conf,
+        ci(cs.ci),
+        int(cs.df),
+        num(ge.f),
+        int(ge.df1),
+        int(ge.df2),
+        peq(ge.p_value),
+        num3(r.effect_sizes.group_effect_partial_eta2)
+    ))]);
+
+    b.subsection(vec![
+        t("Adjusted means at "),
+        v(&c.x),
+        t(format!(" = {at}")),
+    ]);
+    b.table_aligned(
+        vec![
+            vcell(&c.g),
+            vec![t("adjusted mean of "), v(&c.y)],
+            cell("SE"),
+            cell(format!("{} interval", c.conf)),
+            vec![t("within the group's "), v(&c.x), t(" range")],
+        ],
+        aligns("lrrll"),
+        r.adjusted_means
+            .iter()
+            .map(|m| {
+                vec![
+                    vcell(&m.level),
+                    cell(num(Some(m.mean))),
+                    cell(num(m.se)),
+                    cell(ci(m.ci)),
+                    cell(if m.within_range {
+                        "yes"
+                    } else {
+                        "no: extrapolated"
+                    }),
+                ]
+            })
+            .collect(),
+    );
+
+    // The question first, then the answer column by column: whether the pair
+    // differs after adjustment, the size and its interval, and the p-values from
+    // the most to the least protected.
+    b.subsection(vec![t("Which groups differ at the same "), v(&c.x), t("?")]);
+    let adjusted_column = match c.adjust {
+        "none" => "p, not adjusted".to_string(),
+        name => format!("p, {name}"),
+    };
+    b.para(vec![
+        t(format!(
+            "Each pair's adjusted means at {at} compared by a t test on the parallel-lines model; difference = first − second, {} intervals unadjusted. A pair differs when its p-value after adjustment ({}) is below {}. The Tukey–Kramer p-value uses the studentized range over all {} groups (",
+            c.conf,
+            c.adjust,
+            super::level(r.model.alpha),
+            r.groups.len()
+        )),
+        Inline::Cite(Work::Tukey1953),
+        t("; "),
+        Inline::Cite(Work::Kramer1956),
+        t(")."),
+    ]);
+    let alpha = r.model.alpha;
+    b.table_aligned(
+        vec![
+            cell("pair"),
+            cell("differ?"),
+            cell("difference"),
+            cell(format!("{} interval", c.conf)),
+            cell(adjusted_column),
+            cell("Tukey–Kramer p"),
+            cell("p before adjustment"),
+            cell("t"),
+            cell("SE"),
+        ],
+        aligns("llrlrrrrr"),
+        r.pairwise_adjusted
+            .iter()
+            .map(|d| {
+                vec![
+                    pair(&d.a, &d.b),
+                    cell(match d.p_adjusted {
+                        Some(q) if q < alpha => "yes",
+                        Some(_) => "no",
+                        None => "n/a",
+                    }),
+                    cell(num(Some(d.difference))),
+                    cell(ci(d.ci)),
+                    cell(p(d.p_adjusted)),
+                    cell(p(d.p_tukey)),
+                    cell(p(d.p_value)),
+                    cell(num(d.t)),
+                    cell(num(d.se)),
+                ]
+            })
+            .collect(),
+    );
+}

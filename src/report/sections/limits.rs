@@ -1,0 +1,127 @@
+//! "When the mean reaches a limit": lot pooling and crossing points.
+
+use super::{Ctx, cell, level, num3, p, vcell};
+use crate::number::{sig, trimmed};
+use crate::report::cite::Work;
+use crate::report::doc::{Builder, Inline, t, v};
+
+pub(super) fn section(b: &mut Builder, c: &Ctx) {
+    let r = c.r;
+    b.section(vec![t("When the mean reaches a limit")]);
+    if let Some(pool) = &r.pooling {
+        b.para(vec![
+            t("Lines were pooled step by step ("),
+            Inline::Cite(Work::IchQ1e2003),
+            t(format!("), each test at level {}:", level(pool.alpha))),
+        ]);
+        let (one, two) = match (pool.decision.as_str(), pool.stopped_at.as_deref()) {
+            ("separate", _) => ("yes: separate lines", "not needed"),
+            ("common-slope", _) => ("no: one slope", "yes: parallel lines"),
+            (_, Some("slopes")) => ("test not computable (0/0): stopped", "not reached"),
+            (_, Some(_)) => ("no: one slope", "test not computable (0/0): stopped"),
+            _ => ("no: one slope", "no: one pooled line"),
+        };
+        b.table(
+            vec![cell("step"), cell("question"), cell("p"), cell("outcome")],
+            2,
+            vec![
+                vec![
+                    cell("1"),
+                    cell("do the slopes differ?"),
+                    cell(p(pool.slopes_p)),
+                    cell(one),
+                ],
+                vec![
+                    cell("2"),
+                    cell("given one slope, do the intercepts differ?"),
+                    cell(p(pool.intercepts_p)),
+                    cell(two),
+                ],
+            ],
+        );
+        // The outcome column is text: align it left as the step and question are.
+        if let Some(crate::report::doc::Block::Table(tb)) = b.blocks.last_mut() {
+            tb.align[3] = crate::report::doc::Align::Left;
+        }
+    }
+    let model = r.limits.first().map_or("", |l| l.model.as_str());
+    let conf = r.limits.first().map_or(String::new(), |l| {
+        format!("{}%", trimmed(100.0 * l.confidence, 4))
+    });
+    b.para(vec![
+        t("Each crossing is the "),
+        v(&c.x),
+        t(format!(
+            " value where the one-sided {conf} confidence bound of the mean "
+        )),
+        v(&c.y),
+        t(format!(
+            " meets the limit, read from {}.",
+            match model {
+                "not-decided" => "no line: the pooling steps stopped before choosing one",
+                "pooled" => "the one pooled line",
+                "common-slope" => "the parallel lines (one slope, each group's own intercept)",
+                _ => "each group's own line and residual variance",
+            }
+        )),
+    ]);
+    b.table(
+        vec![
+            cell("line"),
+            cell("limit"),
+            vec![t("crossing at "), v(&c.x)],
+            vec![t("last observed "), v(&c.x)],
+            cell("beyond the data by"),
+        ],
+        2,
+        r.limits
+            .iter()
+            .map(|l| {
+                vec![
+                    vcell(&l.level),
+                    cell(format!("{} {}", l.side, sig(l.limit, 4))),
+                    cell(match (l.crossing, l.reason.as_deref()) {
+                        (Some(x), _) => sig(x, 4),
+                        (None, Some("beyond-at-start")) => {
+                            "none: already past the limit at the first observation".into()
+                        }
+                        (None, Some("not-decided")) => {
+                            "none: no line chosen (pooling stopped)".into()
+                        }
+                        _ => "none: the bound never meets the limit".into(),
+                    }),
+                    cell(sig(l.observed_max, 4)),
+                    cell(if l.extrapolated {
+                        format!("{} (extrapolated)", num3(l.beyond))
+                    } else {
+                        "within the data".into()
+                    }),
+                ]
+            })
+            .collect(),
+    );
+    for e in &r.limits_earliest {
+        if e.already_beyond {
+            b.para(vec![
+                t(format!("Earliest past the {} limit: ", e.side)),
+                v(&e.level),
+                t(", already at its first observation ("),
+                v(&c.x),
+                t(format!(" = {}).", sig(e.crossing, 4))),
+            ]);
+        } else {
+            b.para(vec![
+                t(format!("Earliest {}-limit crossing: ", e.side)),
+                v(&e.level),
+                t(" at "),
+                v(&c.x),
+                t(format!(" = {}.", sig(e.crossing, 4))),
+            ]);
+        }
+    }
+    b.para(vec![
+        t("These estimates support, and do not replace, the evaluation that the applicable guidance (for stability data, "),
+        Inline::Cite(Work::IchQ1e2003),
+        t(") and a qualified person require. Whether, and how far, an estimate may be extrapolated beyond the observed data is for that guidance to decide."),
+    ]);
+}

@@ -1,0 +1,151 @@
+//! "How this was computed": the methods paragraph, every method cited by key, and
+//! the references list (exactly the works the report cites).
+
+use super::{Ctx, level, num};
+use crate::report::cite::Work;
+use crate::report::doc::{Block, Builder, Inline, Runs, t, v};
+
+fn cite(w: Work) -> Inline {
+    Inline::Cite(w)
+}
+
+pub(super) fn section(b: &mut Builder, c: &Ctx) {
+    let r = c.r;
+    b.section(vec![t("How this was computed")]);
+    let mut m: Runs = vec![
+        t(
+            "Each group's line was fitted by ordinary least squares, from centred sums of squares and products computed in two passes over each group's rows, means first, then the centred sums (the corrected two-pass algorithm; ",
+        ),
+        cite(Work::ChanGolubLeVeque1983),
+        t(")."),
+    ];
+    if r.model.response_transform != "none" || r.model.covariate_transform != "none" {
+        m.extend([
+            t(" The fits use "),
+            v(&c.y),
+            t(" and "),
+            v(&c.x),
+            t(", transformed as the plan asks; every estimate, mean and interval is on that scale."),
+        ]);
+    }
+    m.extend([
+        t(" Whether the groups share one slope (the homogeneity-of-slopes assumption of the analysis of covariance; "),
+        cite(Work::Fisher1932),
+        t("; "),
+        cite(Work::SnedecorCochran1989),
+        t(format!(
+            ") was tested with the extra-sum-of-squares F test of parallel lines against separate lines, at level {}; slopes were taken as equal when p was at or above that level.",
+            level(r.model.slopes_alpha)
+        )),
+        t(" Pairs of slopes were compared with t tests on the separate-lines model's pooled residual variance, and in unpooled form with Welch–Satterthwaite degrees of freedom ("),
+        cite(Work::Welch1947),
+        t("; "),
+        cite(Work::Satterthwaite1946),
+        t("). Given a common slope, the group effect was tested with the F test of parallel lines against one line for all rows, and the groups' adjusted means (least-squares means; "),
+        cite(Work::SearleSpeedMilliken1980),
+        t(") at "),
+        v(&c.x),
+        t(format!(
+            " = {} were compared pairwise with t tests on the parallel-lines model.",
+            num(Some(r.adjust_at))
+        )),
+    ]);
+    match r.model.comparisons.as_str() {
+        "holm" => m.extend([
+            t(" Pairwise p-values were adjusted with Holm's step-down procedure ("),
+            cite(Work::Holm1979),
+            t(")."),
+        ]),
+        "bonferroni" => m.extend([
+            t(" Pairwise p-values were adjusted with the Bonferroni correction ("),
+            cite(Work::Dunn1961),
+            t(")."),
+        ]),
+        "tukey-kramer" => m.push(t(
+            " The adjusted p-values are the Tukey–Kramer p-values described below.",
+        )),
+        _ => m.push(t(" Pairwise p-values are not adjusted for multiplicity.")),
+    }
+    m.extend([
+        t(" Adjusted means were also compared by Tukey–Kramer p-values from the studentized range distribution ("),
+        cite(Work::Tukey1953),
+        t("; "),
+        cite(Work::Kramer1956),
+        t(")."),
+    ]);
+    b.para(m);
+
+    let mut checks: Runs = vec![
+        t(
+            "Residuals of the separate lines were checked for normality with the Shapiro–Wilk test (",
+        ),
+        cite(Work::ShapiroWilk1965),
+        t(") in Royston's approximation ("),
+        cite(Work::Royston1995),
+        t(
+            "), pooled and within each group of at least 10 rows (with fewer, W is set by the design rather than the data), and for equal spread across groups with the Brown–Forsythe test (",
+        ),
+        cite(Work::BrownForsythe1974),
+        t(
+            "). Influential rows were measured on the selected model by leverage, externally studentized residuals and Cook's distance (",
+        ),
+        cite(Work::Cook1977),
+        t("; "),
+        cite(Work::BelsleyKuhWelsch1980),
+        t("), with the cut-offs 2p/n for leverage ("),
+        cite(Work::HoaglinWelsch1978),
+        t(") and 4/n for Cook's distance ("),
+        cite(Work::BollenJackman1990),
+        t("). The covariate was compared across groups with a one-way analysis of variance."),
+    ];
+    if !r.decision.homogeneous {
+        checks.extend([
+            t(" Where slopes differ, the covariate values at which two groups' lines differ significantly were found by the Johnson–Neyman technique ("),
+            cite(Work::JohnsonNeyman1936),
+        ]);
+        if r.regions
+            .first()
+            .is_some_and(|g| g.method == "johnson-neyman-simultaneous")
+        {
+            checks.extend([t("; simultaneous form of "), cite(Work::Potthoff1964)]);
+        }
+        checks.push(t("), and differences were given at "));
+        if r.model.compare_at_rule == "quartiles" {
+            checks.extend([
+                t("the quartiles of the covariate ("),
+                cite(Work::HyndmanFan1996),
+                t(", definition 7)."),
+            ]);
+        } else {
+            checks.push(t("the covariate values the plan lists."));
+        }
+    }
+    if !r.limits.is_empty() {
+        checks.push(t(
+            " Crossing points are where the one-sided confidence bound of the mean line meets the limit, solved exactly from the bound's closed form and checked numerically",
+        ));
+        if let Some(pool) = &r.pooling {
+            checks.extend([
+                t("; lines were pooled by the two-step procedure of "),
+                cite(Work::IchQ1e2003),
+                t(format!(
+                    ": equal slopes, then equal intercepts, each at level {}",
+                    level(pool.alpha)
+                )),
+            ]);
+        }
+        checks.push(t("."));
+    }
+    checks.extend([
+        t(format!(
+            " Intervals are at {}, from Student's t; tail probabilities come from the regularized incomplete beta function (",
+            c.conf
+        )),
+        cite(Work::AbramowitzStegun1964),
+        t(", 26.5.27 and 26.6.2)."),
+    ]);
+    b.para(checks);
+
+    b.subsection(vec![t("References")]);
+    b.push(Block::References(Vec::new()));
+}

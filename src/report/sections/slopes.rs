@@ -1,0 +1,46 @@
+//! "Slope differences, pair by pair": pooled and unpooled (Welch) comparisons.
+
+use super::{Ctx, cell, int, num, num3, p, pair};
+use crate::report::doc::{Builder, t};
+
+pub(super) fn subsection(b: &mut Builder, c: &Ctx) {
+    let r = c.r;
+    b.subsection(vec![t("Slope differences, pair by pair")]);
+    b.para(vec![t(format!(
+        "Difference = first − second. Pooled: residual variance of the separate-lines model ({} df). Unpooled: each group's own variance, Welch–Satterthwaite df. p-values adjusted: {}.",
+        int(r.separate_slopes.df),
+        c.adjust
+    ))]);
+    b.table(
+        [
+            "pair",
+            "difference",
+            "SE",
+            "t",
+            "p",
+            "adjusted p",
+            "unpooled SE",
+            "unpooled df",
+            "unpooled p",
+        ]
+        .map(cell)
+        .to_vec(),
+        1,
+        r.pairwise_slopes
+            .iter()
+            .map(|s| {
+                vec![
+                    pair(&s.a, &s.b),
+                    cell(num(Some(s.difference))),
+                    cell(num(s.se)),
+                    cell(num(s.t)),
+                    cell(p(s.p_value)),
+                    cell(p(s.p_adjusted)),
+                    cell(num(s.welch.se)),
+                    cell(num3(s.welch.df)),
+                    cell(p(s.welch.p_value)),
+                ]
+            })
+            .collect(),
+    );
+}
