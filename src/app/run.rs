@@ -30,6 +30,10 @@ pub(super) fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
         Some(b) => b.println(line),
         None => say(&format!("{line}\n")),
     };
+    // Plans already run (by their resolved path) and the folders they wrote, so the
+    // same plan twice, or two plans aimed at one folder, cannot write into each other.
+    let mut seen: Vec<PathBuf> = Vec::new();
+    let mut written_to: Vec<(PathBuf, PathBuf)> = Vec::new();
     for plan_path in plans {
         if let Some(b) = &bar {
             b.set_message(plan_path.display().to_string());
@@ -58,7 +62,19 @@ pub(super) fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
             .help(
                 "rename one of the plan files, or run them separately with different --out folders",
             )),
-            _ => run_plan(plan_path, target.as_deref()),
+            _ => {
+                let real = std::fs::canonicalize(plan_path).unwrap_or_else(|_| plan_path.clone());
+                if seen.contains(&real) {
+                    Err(Diagnostic::new(format!(
+                        "{} is named twice on the command line; it ran once",
+                        plan_path.display()
+                    ))
+                    .help("name each plan once"))
+                } else {
+                    seen.push(real);
+                    run_plan_once(plan_path, target.as_deref(), &mut written_to)
+                }
+            }
         };
         match outcome {
             Ok(written) => progress_line(format!(
@@ -172,13 +188,50 @@ pub(super) fn write_outputs(
             .map_err(|e| Diagnostic::new(format!("cannot write the manifest: {e}")))?;
         compiled
     };
-    output::write_run_folder_with(target, files, finish).map_err(|e| e.diagnostic())?
+    output::write_run_folder_with(target, &lp.name, files, finish).map_err(|e| e.diagnostic())?
+}
+
+/// Runs one plan unless an earlier plan of this command wrote the same folder.
+fn run_plan_once(
+    plan_path: &Path,
+    target: Option<&Path>,
+    written_to: &mut Vec<(PathBuf, PathBuf)>,
+) -> Result<PathBuf, Diagnostic> {
+    let lp = load_plan(plan_path)?;
+    let folder = target_of(&lp, target)?;
+    let key = absolute(&folder);
+    if let Some((other, _)) = written_to.iter().find(|(_, t)| *t == key) {
+        return Err(Diagnostic::new(format!(
+            "{} and {} both write {}",
+            other.display(),
+            plan_path.display(),
+            folder.display()
+        ))
+        .help("give each plan its own report.out, or run them with --out DIR so each gets a sub-folder"));
+    }
+    let written = run_plan(plan_path, target)?;
+    written_to.push((plan_path.to_path_buf(), key));
+    Ok(written)
+}
+
+/// `p` made absolute against the current folder, with what exists resolved.
+fn absolute(p: &Path) -> PathBuf {
+    let p = std::env::current_dir().unwrap_or_default().join(p);
+    match (p.parent(), p.file_name()) {
+        (Some(parent), Some(name)) => std::fs::canonicalize(parent)
+            .map(|d| d.join(name))
+            .unwrap_or(p.clone()),
+        _ => p,
+    }
 }
 
 /// Runs one plan end to end and returns the folder it wrote.
 pub(super) fn run_plan(plan_path: &Path, out: Option<&Path>) -> Result<PathBuf, Diagnostic> {
     let lp = load_plan(plan_path)?;
     let target = target_of(&lp, out)?;
+    // A run killed mid-exchange left the old report aside: put it back first, so
+    // even a run that fails below leaves the folder as the user had it.
+    output::recover(&target).map_err(|e| e.diagnostic())?;
     let analysed = analyse(&lp, &lp.dir.join(&lp.plan.data.path))?;
     let files = render(&lp, &analysed)?;
     write_outputs(&lp, &analysed, &files, &target, &target)?;

@@ -59,12 +59,14 @@ pub(super) fn verify(folder: &Path, data_override: Option<&Path>) -> Result<(), 
     }
     let a = analyse(&lp, &data_path)?;
     let files = render(&lp, &a)?;
-    let scratch = std::env::temp_dir().join(format!("slopewise-verify-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&scratch);
-    let rerun_dir = scratch.join("run");
+    let scratch = tempfile::Builder::new()
+        .prefix("slopewise-verify-")
+        .tempdir()
+        .map_err(|e| Diagnostic::new(format!("cannot create a scratch folder: {e}")))?;
+    let rerun_dir = scratch.path().join("run");
     let written = write_outputs(&lp, &a, &files, &rerun_dir, folder);
     let rerun = written.and_then(|()| read_tree(&rerun_dir));
-    let _ = std::fs::remove_dir_all(&scratch);
+    drop(scratch);
     let differences = audit::differences(&read_tree(folder)?, &rerun?);
     if differences.is_empty() {
         say(&format!(
