@@ -253,3 +253,185 @@ fn two_plans_aimed_at_one_folder_are_refused() {
         "{err}"
     );
 }
+
+// ---- 2. nothing hung -----------------------------------------------------------
+
+#[cfg(unix)]
+#[test]
+fn dev_zero_as_data_is_refused_at_once() {
+    // Defect: /dev/zero was read whole into memory.
+    let dir = setup("dev_zero");
+    let plan = unindent(BASE_PLAN).replace("\"data.csv\"", "\"/dev/zero\"");
+    fs::write(dir.join("plan.toml"), plan).unwrap();
+    let started = std::time::Instant::now();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    // Common practice, no source: a refusal needs no reading at all; a second is
+    // a wide margin even on a loaded machine.
+    assert!(started.elapsed() < std::time::Duration::from_secs(1));
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("is not a regular file but a character device"),
+        "{}",
+        stderr(&o)
+    );
+    assert!(!dir.join("out").exists());
+}
+
+#[test]
+fn a_file_of_zeros_is_refused_as_binary() {
+    // Defect: a 2 GB sparse file was read whole; its zeros are caught in the first
+    // bytes now (a small file stands for it here).
+    let dir = setup("zeros");
+    fs::write(dir.join("data.csv"), vec![0u8; 200_000]).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("is not text: it holds a NUL byte at byte 1"),
+        "{}",
+        stderr(&o)
+    );
+}
+
+#[test]
+fn a_utf16_file_is_named_as_utf16() {
+    // Defect: a UTF-16 file was reported as odd characters in "data row 0".
+    let dir = setup("utf16");
+    let mut bytes = vec![0xFF, 0xFE];
+    for unit in unindent(THREE_PLOTS).encode_utf16() {
+        bytes.extend_from_slice(&unit.to_le_bytes());
+    }
+    fs::write(dir.join("data.csv"), bytes).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("is UTF-16 text; slopewise reads UTF-8"),
+        "{}",
+        stderr(&o)
+    );
+}
+
+#[cfg(unix)]
+fn fifo_run(name: &str, pin: bool) -> (PathBuf, Output) {
+    let dir = setup(name);
+    let csv = unindent(THREE_PLOTS);
+    fs::remove_file(dir.join("data.csv")).unwrap();
+    assert!(
+        Command::new("mkfifo")
+            .arg(dir.join("data.csv"))
+            .status()
+            .unwrap()
+            .success()
+    );
+    if pin {
+        let plan = unindent(BASE_PLAN).replace(
+            "path = \"data.csv\"",
+            &format!(
+                "path = \"data.csv\"\nsha256 = \"{}\"",
+                slopewise::digest::sha256_hex(csv.as_bytes())
+            ),
+        );
+        fs::write(dir.join("plan.toml"), plan).unwrap();
+    }
+    let fifo = dir.join("data.csv");
+    let writer = std::thread::spawn(move || fs::write(fifo, csv));
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    writer.join().unwrap().unwrap();
+    (dir, o)
+}
+
+#[cfg(unix)]
+#[test]
+fn fifo_data_records_the_hash_of_the_bytes_parsed() {
+    // Defect: the hash, the pin check and the parse each opened the pipe, so the
+    // hash was that of an empty file, and a pinned pipe hung.
+    let (dir, o) = fifo_run("fifo", false);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let results = fs::read_to_string(dir.join("out/results.json")).unwrap();
+    let want = slopewise::digest::sha256_hex(unindent(THREE_PLOTS).as_bytes());
+    assert!(results.contains(&want), "results.json lacks {want}");
+    let (_, o) = fifo_run("fifo_pinned", true);
+    assert!(o.status.success(), "{}", stderr(&o));
+}
+
+#[cfg(unix)]
+fn fake_typst(dir: &Path, script: &str) -> PathBuf {
+    use std::os::unix::fs::PermissionsExt;
+    let fake = dir.join("fake-typst");
+    fs::write(&fake, script).unwrap();
+    fs::set_permissions(&fake, fs::Permissions::from_mode(0o755)).unwrap();
+    fake
+}
+
+#[cfg(unix)]
+fn pdf_run(dir: &Path, fake: &Path) -> Output {
+    let plan = unindent(BASE_PLAN).replace(
+        "out = \"out\"",
+        "out = \"out\"\nformats = [\"markdown\", \"json\", \"pdf\"]",
+    );
+    fs::write(dir.join("plan.toml"), plan).unwrap();
+    Command::new(env!("CARGO_BIN_EXE_slopewise"))
+        .args(["run", "plan.toml"])
+        .current_dir(dir)
+        .env("SLOPEWISE_TYPST", fake)
+        .env("SLOPEWISE_TYPST_TIMEOUT", "1")
+        .output()
+        .unwrap()
+}
+
+#[cfg(unix)]
+#[test]
+fn a_hanging_typst_is_stopped() {
+    // Defect: a typst that hangs hung the run.
+    let dir = setup("typst_hangs");
+    let fake = fake_typst(&dir, "#!/bin/sh\nexec sleep 30\n");
+    let started = std::time::Instant::now();
+    let o = pdf_run(&dir, &fake);
+    assert!(started.elapsed() < std::time::Duration::from_secs(20));
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("did not finish within 1 s and was stopped"),
+        "{}",
+        stderr(&o)
+    );
+    assert!(dir.join("out/report.md").is_file() && !dir.join("out/report.pdf").exists());
+    assert!(!String::from_utf8_lossy(&o.stdout).contains("wrote"));
+}
+
+#[cfg(unix)]
+#[test]
+fn a_typst_that_writes_no_pdf_is_not_reported_as_wrote() {
+    // Defect: a typst that exits 0 without a PDF was reported as "wrote".
+    let dir = setup("typst_no_pdf");
+    let fake = fake_typst(&dir, "#!/bin/sh\nexit 0\n");
+    let o = pdf_run(&dir, &fake);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("reported success, but no report.pdf appeared"),
+        "{}",
+        stderr(&o)
+    );
+    let cut = fake_typst(
+        &dir,
+        "#!/bin/sh\nprintf '%%PDF-1.7\\n1 0 obj' > report.pdf\n",
+    );
+    let o = pdf_run(&dir, &cut);
+    assert!(!o.status.success());
+    assert!(stderr(&o).contains("is cut short"), "{}", stderr(&o));
+    assert!(!dir.join("out/report.pdf").exists());
+}
+
+// ---- 3. honest records ---------------------------------------------------------
+
+#[test]
+fn verify_with_data_accepts_a_byte_identical_copy_elsewhere() {
+    // Defect: `verify --data` on a byte-identical copy said the folder was edited.
+    let dir = setup("verify_copy");
+    assert!(slopewise(&dir, &["run", "plan.toml"]).status.success());
+    fs::create_dir_all(dir.join("elsewhere/deeper")).unwrap();
+    fs::copy(dir.join("data.csv"), dir.join("elsewhere/deeper/copy.csv")).unwrap();
+    let o = slopewise(
+        &dir,
+        &["verify", "out", "--data", "elsewhere/deeper/copy.csv"],
+    );
+    assert!(o.status.success(), "{}", stderr(&o));
+}

@@ -163,16 +163,20 @@ pub(super) fn render(lp: &LoadedPlan, a: &Analysed) -> Result<Vec<(String, Vec<u
 
 /// Writes the run folder: outputs, then the PDF (if asked) and the manifest, in the
 /// staging folder before it is moved into place. `as_if` is the folder the manifest
-/// describes (the target, or for `verify` the folder being checked).
+/// describes (the target, or for `verify` the folder being checked); `recorded`
+/// is the data's place as a manifest already records it (for `verify`, so that a
+/// byte-identical copy elsewhere given with `--data` reruns to the same manifest).
 pub(super) fn write_outputs(
     lp: &LoadedPlan,
     a: &Analysed,
     files: &[(String, Vec<u8>)],
     target: &Path,
     as_if: &Path,
+    recorded: Option<&str>,
 ) -> Result<(), Diagnostic> {
     let pdf = lp.plan.report.formats.contains(&Format::Pdf);
-    let data_from_run_folder = relative_to(as_if, &a.data_path);
+    let data_from_run_folder =
+        recorded.map_or_else(|| relative_to(as_if, &a.data_path), str::to_string);
     let finish = |staging: &Path| -> Result<(), Diagnostic> {
         let compiled = if pdf { compile_pdf(staging) } else { Ok(()) };
         let manifest = audit::Manifest {
@@ -234,6 +238,6 @@ pub(super) fn run_plan(plan_path: &Path, out: Option<&Path>) -> Result<PathBuf, 
     output::recover(&target).map_err(|e| e.diagnostic())?;
     let analysed = analyse(&lp, &lp.dir.join(&lp.plan.data.path))?;
     let files = render(&lp, &analysed)?;
-    write_outputs(&lp, &analysed, &files, &target, &target)?;
+    write_outputs(&lp, &analysed, &files, &target, &target, None)?;
     Ok(target)
 }

@@ -64,7 +64,14 @@ pub(super) fn verify(folder: &Path, data_override: Option<&Path>) -> Result<(), 
         .tempdir()
         .map_err(|e| Diagnostic::new(format!("cannot create a scratch folder: {e}")))?;
     let rerun_dir = scratch.path().join("run");
-    let written = write_outputs(&lp, &a, &files, &rerun_dir, folder);
+    let written = write_outputs(
+        &lp,
+        &a,
+        &files,
+        &rerun_dir,
+        folder,
+        Some(&manifest.data_from_run_folder),
+    );
     let rerun = written.and_then(|()| read_tree(&rerun_dir));
     drop(scratch);
     let differences = audit::differences(&read_tree(folder)?, &rerun?);
