@@ -435,3 +435,164 @@ fn verify_with_data_accepts_a_byte_identical_copy_elsewhere() {
     );
     assert!(o.status.success(), "{}", stderr(&o));
 }
+
+// ---- 4. every write checked ------------------------------------------------------
+
+#[cfg(target_os = "linux")]
+#[test]
+fn writing_to_a_full_disk_fails_with_one_line() {
+    // Defect: `slopewise schema > /dev/full` (and man, completions, init, check)
+    // exited 0 with nothing written.
+    let dir = setup("dev_full");
+    for args in [
+        &["schema"][..],
+        &["man"][..],
+        &["completions", "bash"][..],
+        &["check", "plan.toml"][..],
+        &["init", "data.csv"][..],
+    ] {
+        let full = fs::OpenOptions::new()
+            .write(true)
+            .open("/dev/full")
+            .unwrap();
+        let o = Command::new(env!("CARGO_BIN_EXE_slopewise"))
+            .args(args)
+            .current_dir(&dir)
+            .stdout(full)
+            .output()
+            .unwrap();
+        assert_eq!(o.status.code(), Some(1), "{args:?}: {}", stderr(&o));
+        assert_eq!(
+            stderr(&o).lines().count(),
+            1,
+            "{args:?}: one line, got {}",
+            stderr(&o)
+        );
+        assert!(
+            stderr(&o).contains("cannot write to standard output"),
+            "{}",
+            stderr(&o)
+        );
+    }
+}
+
+#[cfg(unix)]
+#[test]
+fn a_closed_pipe_ends_quietly_with_status_0() {
+    use std::os::fd::{FromRawFd, OwnedFd};
+    // A pipe whose reading end is closed before slopewise writes: every write
+    // fails with EPIPE, as with `slopewise schema | head -0`.
+    let mut fds = [0; 2];
+    // SAFETY: `fds` has room for the two descriptors pipe() returns.
+    assert_eq!(unsafe { libc::pipe(fds.as_mut_ptr()) }, 0);
+    // SAFETY: both descriptors were just returned by pipe() and are owned here.
+    let (read, write) = unsafe { (OwnedFd::from_raw_fd(fds[0]), OwnedFd::from_raw_fd(fds[1])) };
+    drop(read);
+    let o = Command::new(env!("CARGO_BIN_EXE_slopewise"))
+        .arg("schema")
+        .stdout(write)
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(0));
+    assert_eq!(stderr(&o), "");
+}
+
+// ---- 3. honest records: covariate values in the plan -------------------------------
+
+#[test]
+fn compare_at_nan_is_a_plan_error_at_its_line() {
+    // Defect: `compare_at = [nan]`, `[inf]` and `adjust_at = 1e308` passed
+    // validation and failed later as "a defect".
+    for (value, shown) in [("nan", "NaN"), ("inf", "inf"), ("-inf", "-inf")] {
+        let plan = format!(
+            "{}\n[tests]\ncompare_at = [5.0, {value}]\n",
+            unindent(BASE_PLAN)
+        );
+        common::Test::new(&format!("compare_at_{}", value.replace('-', "minus_")))
+            .plan(&plan)
+            .data(THREE_PLOTS)
+            .fails()
+            .stderr_has(&[
+                &format!("error: tests.compare_at must hold finite numbers; {shown} is not"),
+                // The harness drops BASE_PLAN's opening blank line: its text is
+                // lines 1-12, a blank 13, [tests] 14, the key 15; the value sits
+                // after `compare_at = [5.0, ` (19 characters), at column 20.
+                "--> plan.toml:15:20",
+            ])
+            .run();
+    }
+    let plan =
+        unindent(BASE_PLAN).replace("group = \"plot\"", "group = \"plot\"\nadjust_at = 1e308");
+    common::Test::new("adjust_at_huge")
+        .plan(&plan)
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "error: model.adjust_at holds 1e308, beyond ±1e100",
+            "--> plan.toml:10:13",
+        ])
+        .run();
+}
+
+/// Invented: two groups whose slopes clearly differ (1 and 3 per unit), covariate
+/// from `lo` to `lo + 36` in steps, with a small alternating wobble.
+fn crossing_lines(offset: f64, step: f64) -> String {
+    let mut s = String::from("plot,length_cm,mass_g\n");
+    for (g, slope) in [("a", 1.0), ("b", 3.0)] {
+        for i in 0..10 {
+            let x = offset + step * f64::from(i);
+            let wobble = if i % 2 == 0 { 0.05 } else { -0.05 };
+            s.push_str(&format!(
+                "{g},{x},{}\n",
+                slope * step * f64::from(i) + wobble
+            ));
+        }
+    }
+    s
+}
+
+#[test]
+fn compare_at_outside_the_data_is_flagged_as_extrapolation() {
+    // Defect: `compare_at = [300]` on data spanning 14–50 reported p < 0.0001 with
+    // no extrapolation flag.
+    let dir = setup("extrapolation");
+    fs::write(dir.join("data.csv"), crossing_lines(14.0, 4.0)).unwrap();
+    let plan = format!(
+        "{}\n[tests]\ncompare_at = [30.0, 300.0]\n",
+        unindent(BASE_PLAN)
+    );
+    fs::write(dir.join("plan.toml"), plan).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let results = fs::read_to_string(dir.join("out/results.json")).unwrap();
+    assert!(
+        results.contains(
+            "tests.compare_at value 300 lies outside the observed covariate range [14, 50]"
+        ),
+        "{results}"
+    );
+    assert!(
+        !results.contains("tests.compare_at value 30 "),
+        "30 lies inside"
+    );
+}
+
+#[test]
+fn a_covariate_with_a_huge_offset_warns() {
+    // Defect: x = 1e15 + U(0, 0.1) gave slopes 35–65 % off with no warning.
+    let dir = setup("offset");
+    fs::write(dir.join("data.csv"), crossing_lines(1e15, 0.01)).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    let all = format!(
+        "{}{}",
+        stderr(&o),
+        fs::read_to_string(dir.join("out/results.json")).unwrap_or_default()
+    );
+    assert!(all.contains("significant digits of its spread"), "{all}");
+    // And an ordinary covariate does not.
+    let dir = setup("no_offset");
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(o.status.success());
+    let results = fs::read_to_string(dir.join("out/results.json")).unwrap();
+    assert!(!results.contains("significant digits of its spread"));
+}
