@@ -596,3 +596,27 @@ fn a_covariate_with_a_huge_offset_warns() {
     let results = fs::read_to_string(dir.join("out/results.json")).unwrap();
     assert!(!results.contains("significant digits of its spread"));
 }
+
+#[test]
+fn a_200000_column_header_is_read_in_one_pass() {
+    // Defect: a 200,000-column header took a minute (each name was compared with
+    // every earlier one). Here the duplicate at its end must still be found and
+    // named by both positions; the run takes well under a second in a debug build
+    // (measured), where the quadratic check took minutes.
+    let dir = setup("wide_header");
+    let mut header: Vec<String> = (0..200_000).map(|i| format!("c{i}")).collect();
+    header.push("c17".into());
+    fs::write(dir.join("data.csv"), header.join(",") + "\n1\n").unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("c17"),
+        "{}",
+        &stderr(&o)[..stderr(&o).len().min(2000)]
+    );
+    assert!(
+        stderr(&o).contains("200001"),
+        "{}",
+        &stderr(&o)[..stderr(&o).len().min(2000)]
+    );
+}
