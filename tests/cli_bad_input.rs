@@ -690,7 +690,7 @@ fn output_folder_holding_a_foreign_file_is_refused_and_left_untouched() {
         .fails()
         .stderr_has(&[
             "error: the output folder already exists and holds `notes.txt`, which slopewise did not write: out",
-            "help: slopewise replaces only folders it wrote; choose a new or empty folder with report.out or --out",
+            "help: slopewise replaces only a folder it wrote for the same plan; move that file out, or choose a new folder with report.out or --out",
         ])
         .run();
     // The harness already checked that nothing changed; say it once more in words.

@@ -61,6 +61,11 @@ impl AnalysisError {
             AnalysisError::TooFewGroups { .. } => Diagnostic::new(self.to_string()).help(
                 "each group needs at least 3 usable rows with at least two different covariate values; check model.group, data.keep and data.missing",
             ),
+            AnalysisError::Magnitude { magnitude, .. } if *magnitude < 1.0 => {
+                Diagnostic::new(self.to_string()).help(
+                    "express the column in smaller units (for example multiply by 1e200), or use a log transform",
+                )
+            }
             AnalysisError::Magnitude { .. } => Diagnostic::new(self.to_string())
                 .help("express the column in other units (for example divide by 1e200), or use a log transform"),
             AnalysisError::NonFinite { .. } => Diagnostic::new(self.to_string())

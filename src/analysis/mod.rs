@@ -211,6 +211,45 @@ impl Fits {
     }
 }
 
+/// Fewer steps than this between the smallest and largest covariate value, at the
+/// spacing of doubles near the largest, earn a precision warning.
+const MIN_RESOLVED_STEPS: f64 = 1e6;
+
+/// A covariate whose spread is tiny beside its offset (x = 1e15 + a few tenths) is
+/// rounded when it is read: neighbouring doubles near 1e15 are 0.125 apart, so its
+/// values, and every slope on them, carry only a few digits. The magnitude guard
+/// cannot see this (the values are ordinary in size), so the spread is measured
+/// in units of that spacing. Common practice, no source.
+fn offset_precision_warning(
+    covariate: &str,
+    moments: &[crate::fit::moments::Moments],
+) -> Option<String> {
+    let lo = moments
+        .iter()
+        .map(|m| m.min_x)
+        .fold(f64::INFINITY, f64::min);
+    let hi = moments
+        .iter()
+        .map(|m| m.max_x)
+        .fold(f64::NEG_INFINITY, f64::max);
+    let top = lo.abs().max(hi.abs());
+    if !(top.is_finite() && hi > lo) {
+        return None;
+    }
+    let spacing = top * f64::EPSILON;
+    let steps = (hi - lo) / spacing;
+    (steps < MIN_RESOLVED_STEPS).then(|| {
+        format!(
+            "`{covariate}` spans only {} beside values near {}: at that size a number is stored to about {}, so the covariate keeps fewer than {} significant digits of its spread and the slopes may be far off. Subtract a round offset from the column (for example {}) before the analysis.",
+            crate::number::sig(hi - lo, 3),
+            crate::number::sig(top, 3),
+            crate::number::sig(spacing, 2),
+            (steps.max(1.0).log10().floor() as i64).max(1),
+            crate::number::sig(lo.trunc(), 6)
+        )
+    })
+}
+
 /// The procedure proper; also returns the rows beyond the influence cut-offs.
 /// `adjust_at` overrides the plan's adjustment point (the sensitivity rerun holds
 /// the full data's).
@@ -224,6 +263,9 @@ fn procedure(
     let eligible = eligible::select(data, &mut warnings)?;
     check_magnitudes(plan, &eligible.groups)?;
     let moments: Vec<_> = eligible.groups.iter().map(|g| g.moments).collect();
+    if let Some(w) = offset_precision_warning(&plan.model.covariate, &moments) {
+        warnings.push(w);
+    }
     let fits = Fits::new(&eligible.groups);
     let (separate, common, one) = (&fits.separate, &fits.common, &fits.one);
     let levels: Vec<&str> = eligible.groups.iter().map(|g| g.level.as_str()).collect();
@@ -293,7 +335,21 @@ fn procedure(
     } else {
         let all = one.line.moments;
         let at = match &plan.tests.compare_at {
-            Some(values) => values.clone(),
+            Some(values) => {
+                // A difference far outside the data rests on the lines' extension
+                // alone; say so rather than report its p-value bare (issue 19).
+                for v in values {
+                    if *v < all.min_x || *v > all.max_x {
+                        warnings.push(format!(
+                            "tests.compare_at value {} lies outside the observed covariate range [{}, {}]: the difference there is an extrapolation of the fitted lines",
+                            crate::number::trimmed(*v, 6),
+                            crate::number::trimmed(all.min_x, 6),
+                            crate::number::trimmed(all.max_x, 6)
+                        ));
+                    }
+                }
+                values.clone()
+            }
             None => {
                 let x = || {
                     eligible

@@ -29,36 +29,46 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
                 .help("data.path is relative to the folder that holds the plan file")
         })
     };
-    if let Some(pin) = &plan.data.sha256 {
-        let actual = hash_file(open()?, &data_file)?;
-        if &actual != pin {
-            return Err(Diagnostic::new(format!(
+    let check_pin = |actual: &str| -> Result<(), Diagnostic> {
+        match &plan.data.sha256 {
+            Some(pin) if actual != pin => Err(Diagnostic::new(format!(
                 "the data file {data_file} is not the one the plan pins: its SHA-256 is {actual}, the plan expects {pin}"
             ))
             .at(lp.snippet(plan.spans.data_sha256.clone().unwrap_or_default(), "pinned here"))
-            .help("if the new data are intended, update data.sha256; otherwise restore the pinned file"));
+            .help("if the new data are intended, update data.sha256; otherwise restore the pinned file")),
+            _ => Ok(()),
         }
-    }
-    // Hash on a second core while the first parses: the file is read twice, but
-    // the second read comes from the page cache and the hash leaves the critical path.
-    // A large file is also parsed in two halves (see `data::load_seekable`).
-    let for_hash = open()?;
-    let len = for_hash
-        .metadata()
-        .map_err(|e| Diagnostic::new(format!("cannot read the data file {data_file}: {e}")))?
-        .len();
-    let (dataset, data_sha256) = std::thread::scope(|scope| {
-        let hasher = scope.spawn(|| hash_file(for_hash, &data_file));
-        let dataset = data::load_seekable(plan, len, data::PARALLEL_MIN_BYTES, || {
-            File::open(data_path)
-        })
-        .map_err(|e| data_diagnostic(&e, lp, &data_file));
-        let hash = hasher
-            .join()
-            .unwrap_or_else(|_| Err(Diagnostic::new("hashing the data file failed")));
-        (dataset, hash)
-    });
-    let (dataset, data_sha256) = (dataset?, data_sha256?);
+    };
+    let (dataset, data_sha256) = match source_kind(data_path) {
+        Source::Regular => {
+            sniff(open()?, &data_file)?;
+            if plan.data.sha256.is_some() {
+                check_pin(&hash_file(open()?, &data_file)?)?;
+            }
+            read_regular(lp, data_path, &data_file, open()?)?
+        }
+        Source::Pipe => {
+            // A pipe can be read only once: read it whole, hash those bytes, and
+            // parse exactly them, so the record, the pin and the parse agree.
+            let mut bytes = Vec::new();
+            std::io::Read::read_to_end(&mut open()?, &mut bytes).map_err(|e| {
+                Diagnostic::new(format!("cannot read the data file {data_file}: {e}"))
+            })?;
+            check_text(&bytes, &data_file)?;
+            let hash = crate::digest::sha256_hex(&bytes);
+            check_pin(&hash)?;
+            let dataset =
+                data::load(plan, &bytes).map_err(|e| data_diagnostic(&e, lp, &data_file))?;
+            (dataset, hash)
+        }
+        Source::Other(what) => {
+            return Err(Diagnostic::new(format!(
+                "the data file {data_file} is not a regular file but {what}"
+            ))
+            .at(lp.snippet(plan.spans.data_path.clone(), "named here"))
+            .help("data.path must name a CSV file (or a named pipe that delivers one)"));
+        }
+    };
     // What shaped the PDF is recorded only when there is one; a run without it
     // does not depend on typst at all.
     let pdf = plan.report.formats.contains(&crate::plan::Format::Pdf);
@@ -92,6 +102,108 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
         results,
         data_path: data_path.to_path_buf(),
     })
+}
+
+/// What kind of thing a data path names.
+enum Source {
+    Regular,
+    Pipe,
+    /// Anything else, described for the message.
+    Other(&'static str),
+}
+
+fn source_kind(path: &Path) -> Source {
+    let Ok(meta) = std::fs::metadata(path) else {
+        // Let opening it give the error (not found, no permission).
+        return Source::Regular;
+    };
+    let kind = meta.file_type();
+    if kind.is_file() {
+        return Source::Regular;
+    }
+    if kind.is_dir() {
+        return Source::Other("a folder");
+    }
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::FileTypeExt;
+        if kind.is_fifo() {
+            return Source::Pipe;
+        }
+        if kind.is_char_device() {
+            return Source::Other("a character device (such as /dev/zero)");
+        }
+        if kind.is_block_device() {
+            return Source::Other("a block device");
+        }
+        if kind.is_socket() {
+            return Source::Other("a socket");
+        }
+    }
+    Source::Other("a special file")
+}
+
+/// Bytes looked at before parsing to tell text from binary.
+const SNIFF_BYTES: u64 = 64 << 10;
+
+/// Refuses binary and UTF-16 content from the file's first bytes, before a
+/// multi-gigabyte file of zeros is parsed as one endless field.
+fn sniff(file: File, shown: &str) -> Result<(), Diagnostic> {
+    let mut head = Vec::new();
+    std::io::Read::read_to_end(&mut std::io::Read::take(file, SNIFF_BYTES), &mut head)
+        .map_err(|e| Diagnostic::new(format!("cannot read the data file {shown}: {e}")))?;
+    check_text(&head, shown)
+}
+
+fn check_text(head: &[u8], shown: &str) -> Result<(), Diagnostic> {
+    let head = &head[..head.len().min(SNIFF_BYTES as usize)];
+    let utf16 = head.starts_with(b"\xFF\xFE") || head.starts_with(b"\xFE\xFF") || {
+        // No byte-order mark: ASCII text in UTF-16 has a zero in every other byte.
+        let pairs = head.len() / 2;
+        let zero_odd = head.iter().skip(1).step_by(2).filter(|b| **b == 0).count();
+        let zero_even = head.iter().step_by(2).filter(|b| **b == 0).count();
+        pairs >= 2 && (zero_odd * 10 >= pairs * 9) != (zero_even * 10 >= pairs * 9)
+    };
+    if utf16 {
+        return Err(Diagnostic::new(format!(
+            "the data file {shown} is UTF-16 text; slopewise reads UTF-8"
+        ))
+        .help("save the file as UTF-8 (\"CSV UTF-8\" in most spreadsheet programs)"));
+    }
+    if let Some(at) = head.iter().position(|b| *b == 0) {
+        return Err(Diagnostic::new(format!(
+            "the data file {shown} is not text: it holds a NUL byte at byte {}",
+            at + 1
+        ))
+        .help("data.path must name a CSV text file; check that it is not an archive, a spreadsheet or an image"));
+    }
+    Ok(())
+}
+
+/// A regular file: parsed (in halves when large) while a second core hashes it.
+fn read_regular(
+    lp: &LoadedPlan,
+    data_path: &Path,
+    data_file: &str,
+    for_hash: File,
+) -> Result<(data::Dataset, String), Diagnostic> {
+    let plan = &lp.plan;
+    let len = for_hash
+        .metadata()
+        .map_err(|e| Diagnostic::new(format!("cannot read the data file {data_file}: {e}")))?
+        .len();
+    let (dataset, data_sha256) = std::thread::scope(|scope| {
+        let hasher = scope.spawn(|| hash_file(for_hash, data_file));
+        let dataset = data::load_seekable(plan, len, data::PARALLEL_MIN_BYTES, || {
+            File::open(data_path)
+        })
+        .map_err(|e| data_diagnostic(&e, lp, data_file));
+        let hash = hasher
+            .join()
+            .unwrap_or_else(|_| Err(Diagnostic::new("hashing the data file failed")));
+        (dataset, hash)
+    });
+    Ok((dataset?, data_sha256?))
 }
 
 pub(super) fn hash_file(file: File, shown: &str) -> Result<String, Diagnostic> {

@@ -12,13 +12,22 @@ pub(super) fn write_new_file(path: &Path, bytes: &[u8]) -> Result<(), Diagnostic
                 .help("choose a new file name, or remove the old file first"),
         );
     }
-    let tmp = path.with_extension("partial");
-    std::fs::write(&tmp, bytes)
-        .and_then(|()| std::fs::rename(&tmp, path))
-        .map_err(|e| {
-            let _ = std::fs::remove_file(&tmp);
-            Diagnostic::new(format!("cannot write {}: {e}", path.display()))
-        })
+    let dir = match path.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d,
+        _ => Path::new("."),
+    };
+    let fail = |e: std::io::Error| Diagnostic::new(format!("cannot write {}: {e}", path.display()));
+    let mut tmp = tempfile::Builder::new()
+        .prefix(".slopewise-")
+        .tempfile_in(dir)
+        .map_err(fail)?;
+    std::io::Write::write_all(&mut tmp, bytes)
+        .and_then(|()| tmp.as_file().sync_all())
+        .map_err(fail)?;
+    // Refuses, as above, a file that appeared meanwhile; the temporary file is
+    // removed when it is dropped on any error.
+    tmp.persist_noclobber(path).map_err(|e| fail(e.error))?;
+    Ok(())
 }
 
 /// Every file under `dir`, by relative path with `/` separators.

@@ -91,10 +91,23 @@ pub fn main() -> ExitCode {
     finish(outcome)
 }
 
-/// Writes to stdout; a closed pipe (`slopewise diff … | head`) ends output quietly.
+/// Writes to stdout, checking the result. A closed pipe (`slopewise schema | head`)
+/// ends the process quietly with status 0, as `head` expects; any other write error
+/// (`slopewise schema > /dev/full`) is one line on stderr and status 1, never a
+/// silent success with nothing written.
 pub(super) fn say(text: &str) {
     let mut out = std::io::stdout().lock();
-    let _ = out.write_all(text.as_bytes()).and_then(|()| out.flush());
+    match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
+        Ok(()) => {}
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => std::process::exit(0),
+        Err(e) => {
+            let _ = writeln!(
+                std::io::stderr(),
+                "error: cannot write to standard output: {e}"
+            );
+            std::process::exit(1);
+        }
+    }
 }
 
 /// Prints an error once and turns the outcome into the exit status.

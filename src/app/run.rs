@@ -30,6 +30,10 @@ pub(super) fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
         Some(b) => b.println(line),
         None => say(&format!("{line}\n")),
     };
+    // Plans already run (by their resolved path) and the folders they wrote, so the
+    // same plan twice, or two plans aimed at one folder, cannot write into each other.
+    let mut seen: Vec<PathBuf> = Vec::new();
+    let mut written_to: Vec<(PathBuf, PathBuf)> = Vec::new();
     for plan_path in plans {
         if let Some(b) = &bar {
             b.set_message(plan_path.display().to_string());
@@ -58,7 +62,19 @@ pub(super) fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
             .help(
                 "rename one of the plan files, or run them separately with different --out folders",
             )),
-            _ => run_plan(plan_path, target.as_deref()),
+            _ => {
+                let real = std::fs::canonicalize(plan_path).unwrap_or_else(|_| plan_path.clone());
+                if seen.contains(&real) {
+                    Err(Diagnostic::new(format!(
+                        "{} is named twice on the command line; it ran once",
+                        plan_path.display()
+                    ))
+                    .help("name each plan once"))
+                } else {
+                    seen.push(real);
+                    run_plan_once(plan_path, target.as_deref(), &mut written_to)
+                }
+            }
         };
         match outcome {
             Ok(written) => progress_line(format!(
@@ -147,16 +163,20 @@ pub(super) fn render(lp: &LoadedPlan, a: &Analysed) -> Result<Vec<(String, Vec<u
 
 /// Writes the run folder: outputs, then the PDF (if asked) and the manifest, in the
 /// staging folder before it is moved into place. `as_if` is the folder the manifest
-/// describes (the target, or for `verify` the folder being checked).
+/// describes (the target, or for `verify` the folder being checked); `recorded`
+/// is the data's place as a manifest already records it (for `verify`, so that a
+/// byte-identical copy elsewhere given with `--data` reruns to the same manifest).
 pub(super) fn write_outputs(
     lp: &LoadedPlan,
     a: &Analysed,
     files: &[(String, Vec<u8>)],
     target: &Path,
     as_if: &Path,
+    recorded: Option<&str>,
 ) -> Result<(), Diagnostic> {
     let pdf = lp.plan.report.formats.contains(&Format::Pdf);
-    let data_from_run_folder = relative_to(as_if, &a.data_path);
+    let data_from_run_folder =
+        recorded.map_or_else(|| relative_to(as_if, &a.data_path), str::to_string);
     let finish = |staging: &Path| -> Result<(), Diagnostic> {
         let compiled = if pdf { compile_pdf(staging) } else { Ok(()) };
         let pv = &a.results.provenance;
@@ -178,15 +198,52 @@ pub(super) fn write_outputs(
             .map_err(|e| Diagnostic::new(format!("cannot write the manifest: {e}")))?;
         compiled
     };
-    output::write_run_folder_with(target, files, finish).map_err(|e| e.diagnostic())?
+    output::write_run_folder_with(target, &lp.name, files, finish).map_err(|e| e.diagnostic())?
+}
+
+/// Runs one plan unless an earlier plan of this command wrote the same folder.
+fn run_plan_once(
+    plan_path: &Path,
+    target: Option<&Path>,
+    written_to: &mut Vec<(PathBuf, PathBuf)>,
+) -> Result<PathBuf, Diagnostic> {
+    let lp = load_plan(plan_path)?;
+    let folder = target_of(&lp, target)?;
+    let key = absolute(&folder);
+    if let Some((other, _)) = written_to.iter().find(|(_, t)| *t == key) {
+        return Err(Diagnostic::new(format!(
+            "{} and {} both write {}",
+            other.display(),
+            plan_path.display(),
+            folder.display()
+        ))
+        .help("give each plan its own report.out, or run them with --out DIR so each gets a sub-folder"));
+    }
+    let written = run_plan(plan_path, target)?;
+    written_to.push((plan_path.to_path_buf(), key));
+    Ok(written)
+}
+
+/// `p` made absolute against the current folder, with what exists resolved.
+fn absolute(p: &Path) -> PathBuf {
+    let p = std::env::current_dir().unwrap_or_default().join(p);
+    match (p.parent(), p.file_name()) {
+        (Some(parent), Some(name)) => std::fs::canonicalize(parent)
+            .map(|d| d.join(name))
+            .unwrap_or(p.clone()),
+        _ => p,
+    }
 }
 
 /// Runs one plan end to end and returns the folder it wrote.
 pub(super) fn run_plan(plan_path: &Path, out: Option<&Path>) -> Result<PathBuf, Diagnostic> {
     let lp = load_plan(plan_path)?;
     let target = target_of(&lp, out)?;
+    // A run killed mid-exchange left the old report aside: put it back first, so
+    // even a run that fails below leaves the folder as the user had it.
+    output::recover(&target).map_err(|e| e.diagnostic())?;
     let analysed = analyse(&lp, &lp.dir.join(&lp.plan.data.path))?;
     let files = render(&lp, &analysed)?;
-    write_outputs(&lp, &analysed, &files, &target, &target)?;
+    write_outputs(&lp, &analysed, &files, &target, &target, None)?;
     Ok(target)
 }

@@ -42,6 +42,11 @@ pub(super) fn template_hashes() -> std::collections::BTreeMap<String, String> {
     .into()
 }
 
+/// Environment variable giving typst's time limit in seconds (default 300).
+pub const TYPST_TIMEOUT_ENV: &str = "SLOPEWISE_TYPST_TIMEOUT";
+
+const DEFAULT_TIMEOUT_SECS: u64 = 300;
+
 /// Compiles `report.typ` in the staging folder into `report.pdf` with the external
 /// `typst`: project root fixed to the folder, system fonts ignored, and a fixed
 /// creation date (SOURCE_DATE_EPOCH if set, else 0), so reruns give the same bytes.
@@ -65,18 +70,24 @@ pub(super) fn compile_pdf(staging: &Path) -> Result<(), Diagnostic> {
         .ok()
         .filter(|v| v.parse::<u64>().is_ok())
         .unwrap_or_else(|| "0".into());
-    let output = std::process::Command::new(&typst)
-        .current_dir(staging)
-        .args([
-            "compile",
-            "--root",
-            ".",
-            "--ignore-system-fonts",
-            "--font-path",
-            ".fonts",
-        ])
-        .args(["--creation-timestamp", &epoch, "report.typ", "report.pdf"])
-        .output();
+    let limit = std::env::var(TYPST_TIMEOUT_ENV)
+        .ok()
+        .and_then(|v| v.parse::<u64>().ok())
+        .unwrap_or(DEFAULT_TIMEOUT_SECS);
+    let output = run_with_limit(
+        std::process::Command::new(&typst)
+            .current_dir(staging)
+            .args([
+                "compile",
+                "--root",
+                ".",
+                "--ignore-system-fonts",
+                "--font-path",
+                ".fonts",
+            ])
+            .args(["--creation-timestamp", &epoch, "report.typ", "report.pdf"]),
+        std::time::Duration::from_secs(limit),
+    );
     cleanup();
     let shown = Path::new(&typst).display().to_string();
     match output {
@@ -85,6 +96,13 @@ pub(super) fn compile_pdf(staging: &Path) -> Result<(), Diagnostic> {
         ))
         .help(format!("install it with `cargo install typst-cli --version {TYPST_VERSION} --locked`"))
         .help(format!("or set {TYPST_ENV} to the path of a typst binary"))),
+        Err(e) if e.kind() == std::io::ErrorKind::TimedOut => {
+            let _ = std::fs::remove_file(staging.join("report.pdf"));
+            Err(Diagnostic::new(format!(
+                "the PDF was not written: {shown} did not finish within {limit} s and was stopped; the other outputs were written"
+            ))
+            .help(format!("set {TYPST_TIMEOUT_ENV} to allow longer, or check `{shown} --version`")))
+        }
         Err(e) => Err(Diagnostic::new(format!("the PDF was not written: cannot run {shown}: {e}"))),
         Ok(out) if !out.status.success() => Err(Diagnostic::new(format!(
             "the PDF was not written: typst failed ({}); the other outputs were written. typst said:\n{}",
@@ -92,6 +110,66 @@ pub(super) fn compile_pdf(staging: &Path) -> Result<(), Diagnostic> {
             String::from_utf8_lossy(&out.stderr).trim_end()
         ))
         .help(format!("slopewise is tested with typst {TYPST_VERSION}; check `{shown} --version`"))),
-        Ok(_) => Ok(()),
+        Ok(_) => match check_pdf(&staging.join("report.pdf")) {
+            Ok(()) => Ok(()),
+            Err(what) => {
+                let _ = std::fs::remove_file(staging.join("report.pdf"));
+                Err(Diagnostic::new(format!(
+                    "the PDF was not written: {shown} reported success, but {what}; the other outputs were written"
+                ))
+                .help(format!("slopewise is tested with typst {TYPST_VERSION}; check `{shown} --version`")))
+            }
+        },
     }
+}
+
+/// The child's status and stderr, or `TimedOut` after killing it at `limit`. Its
+/// output goes to unnamed temporary files, so a chatty child cannot fill a pipe
+/// and stall while we wait.
+fn run_with_limit(
+    cmd: &mut std::process::Command,
+    limit: std::time::Duration,
+) -> std::io::Result<std::process::Output> {
+    use std::io::{Read, Seek};
+    use wait_timeout::ChildExt;
+    let mut err = tempfile::tempfile()?;
+    let mut child = cmd
+        .stdin(std::process::Stdio::null())
+        .stdout(std::process::Stdio::null())
+        .stderr(err.try_clone()?)
+        .spawn()?;
+    let Some(status) = child.wait_timeout(limit)? else {
+        let _ = child.kill();
+        let _ = child.wait();
+        return Err(std::io::Error::new(
+            std::io::ErrorKind::TimedOut,
+            "typst timed out",
+        ));
+    };
+    let mut stderr = Vec::new();
+    err.rewind()?;
+    err.read_to_end(&mut stderr)?;
+    Ok(std::process::Output {
+        status,
+        stdout: Vec::new(),
+        stderr,
+    })
+}
+
+/// A complete PDF starts with `%PDF-` and ends with `%%EOF` (ISO 32000-1, 7.5.2
+/// and 7.5.5), give or take trailing line ends.
+fn check_pdf(path: &Path) -> Result<(), String> {
+    let bytes = std::fs::read(path).map_err(|_| "no report.pdf appeared".to_string())?;
+    if !bytes.starts_with(b"%PDF-") {
+        return Err("report.pdf does not start as a PDF does".into());
+    }
+    let tail = &bytes[bytes.len().saturating_sub(1024)..];
+    let trimmed = tail
+        .iter()
+        .rposition(|b| !b.is_ascii_whitespace())
+        .map_or(&tail[..0], |end| &tail[..=end]);
+    if !trimmed.ends_with(b"%%EOF") {
+        return Err("report.pdf is cut short (it lacks the closing %%EOF)".into());
+    }
+    Ok(())
 }

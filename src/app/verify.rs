@@ -174,12 +174,21 @@ fn rerun(
     }
     let a = analyse(&lp, &data_path)?;
     let files = render(&lp, &a)?;
-    let scratch = std::env::temp_dir().join(format!("slopewise-verify-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&scratch);
-    let rerun_dir = scratch.join("run");
-    let written = write_outputs(&lp, &a, &files, &rerun_dir, folder);
+    let scratch = tempfile::Builder::new()
+        .prefix("slopewise-verify-")
+        .tempdir()
+        .map_err(|e| Diagnostic::new(format!("cannot create a scratch folder: {e}")))?;
+    let rerun_dir = scratch.path().join("run");
+    let written = write_outputs(
+        &lp,
+        &a,
+        &files,
+        &rerun_dir,
+        folder,
+        Some(&manifest.data_from_run_folder),
+    );
     let rerun = written.and_then(|()| read_tree(&rerun_dir));
-    let _ = std::fs::remove_dir_all(&scratch);
+    drop(scratch);
     let mut in_folder = read_tree(folder)?;
     in_folder.retain(|name, _| !name.starts_with(&format!("{APPROVALS_DIR}/")));
     let differences = audit::differences(&in_folder, &rerun?);

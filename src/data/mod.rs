@@ -521,6 +521,10 @@ fn read_header<R: Read>(csv: &mut csv::Reader<R>) -> Result<Vec<String>, DataErr
         return Err(DataError::Empty);
     }
     let mut columns = Vec::with_capacity(header.len());
+    // Names seen so far, for the duplicate check in one pass: a 200,000-column
+    // header took a minute when each name was compared with every earlier one.
+    let mut seen: std::collections::HashMap<String, usize> =
+        std::collections::HashMap::with_capacity(header.len());
     for (i, raw) in header.iter().enumerate() {
         let raw = header_cell(i, raw);
         let name = std::str::from_utf8(raw).map_err(|_| DataError::NotUtf8 {
@@ -532,13 +536,14 @@ fn read_header<R: Read>(csv: &mut csv::Reader<R>) -> Result<Vec<String>, DataErr
             },
         })?;
         let name = name.trim().to_string();
-        if let Some(first) = columns.iter().position(|c| *c == name) {
+        if let Some(first) = seen.get(&name) {
             return Err(DataError::DuplicateColumn {
                 name,
                 first: first + 1,
                 second: i + 1,
             });
         }
+        seen.insert(name.clone(), i);
         columns.push(name);
     }
     Ok(columns)

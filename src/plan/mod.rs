@@ -15,6 +15,35 @@ pub use schema::{Comparisons, Format, Procedure, Regions, Transform, derived_jso
 use std::ops::Range;
 use toml::Spanned;
 
+/// Covariate values a plan names beyond this size are refused: squared in a
+/// standard error they would overflow (1e308 did, and failed later as a defect).
+pub const MAX_COVARIATE_VALUE: f64 = 1e100;
+
+/// A covariate value written in the plan: finite and of a size the arithmetic can
+/// square. Whether it lies in the observed range is the analysis's warning.
+fn covariate_value(
+    v: f64,
+    span: std::ops::Range<usize>,
+    key: &str,
+    err: &dyn Fn(std::ops::Range<usize>, String, &str) -> PlanError,
+) -> Result<f64, PlanError> {
+    if !v.is_finite() {
+        return Err(err(
+            span,
+            format!("{key} must hold finite numbers; {v} is not"),
+            "write covariate values such as 10.0, within the range of the data",
+        ));
+    }
+    if v.abs() > MAX_COVARIATE_VALUE {
+        return Err(err(
+            span,
+            format!("{key} holds {v:e}, beyond ±1e100"),
+            "write a covariate value within the range of the data",
+        ));
+    }
+    Ok(v)
+}
+
 /// A validated plan.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Plan {
@@ -295,8 +324,15 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
         None => AdjustAt::Mean,
         Some(value) => match value.get_ref() {
             toml::Value::String(s) if s == "mean" => AdjustAt::Mean,
-            toml::Value::Float(f) if f.is_finite() => AdjustAt::Value(*f),
-            toml::Value::Integer(i) => AdjustAt::Value(*i as f64),
+            toml::Value::Float(f) if f.is_finite() => {
+                AdjustAt::Value(covariate_value(*f, value.span(), "model.adjust_at", &err)?)
+            }
+            toml::Value::Integer(i) => AdjustAt::Value(covariate_value(
+                *i as f64,
+                value.span(),
+                "model.adjust_at",
+                &err,
+            )?),
             _ => {
                 return Err(err(
                     value.span(),
@@ -369,6 +405,9 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                                 "tests.compare_at is empty".into(),
                                 "list covariate values such as [10.0, 20.0], or remove the key to use the quartiles",
                             ));
+                        }
+                        for v in list.get_ref() {
+                            covariate_value(*v.get_ref(), v.span(), "tests.compare_at", &err)?;
                         }
                         Some(list.get_ref().iter().map(|v| *v.get_ref()).collect())
                     }

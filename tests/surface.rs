@@ -1,0 +1,622 @@
+//! Issue 19, "Nothing lost, nothing hung": the command surface under careless or
+//! hostile use. Each test reproduces one defect measured on c464eb8 (named in its
+//! comment) and states what must happen instead. All data are invented.
+
+mod common;
+
+use std::fs;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use common::{BASE_PLAN, THREE_PLOTS};
+
+/// A fresh folder holding `plan.toml` (BASE_PLAN, reports in `out`) and `data.csv`.
+fn setup(name: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("slopewise-surface-{name}-{}", std::process::id()));
+    let _ = fs::remove_dir_all(&dir);
+    fs::create_dir_all(&dir).unwrap();
+    fs::write(dir.join("plan.toml"), unindent(BASE_PLAN)).unwrap();
+    fs::write(dir.join("data.csv"), unindent(THREE_PLOTS)).unwrap();
+    dir
+}
+
+fn unindent(text: &str) -> String {
+    text.lines()
+        .map(str::trim_start)
+        .collect::<Vec<_>>()
+        .join("\n")
+        + "\n"
+}
+
+fn slopewise(dir: &Path, args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_slopewise"))
+        .args(args)
+        .current_dir(dir)
+        .output()
+        .expect("run slopewise")
+}
+
+fn stderr(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stderr).into_owned()
+}
+
+fn hidden_leftovers(dir: &Path) -> Vec<String> {
+    fs::read_dir(dir)
+        .unwrap()
+        .filter_map(|e| e.ok())
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .filter(|n| n.contains(".partial-") || n.contains(".previous-") || n.ends_with(".lock"))
+        .collect()
+}
+
+// ---- 1. never deleting a user's files -------------------------------------------
+
+#[test]
+fn a_users_file_inside_figures_survives_and_is_named() {
+    // Defect: the replace check looked only at top-level names, so a user's
+    // figures/fig1-final.png inside an earlier run folder was deleted.
+    let dir = setup("figures");
+    assert!(slopewise(&dir, &["run", "plan.toml"]).status.success());
+    fs::write(dir.join("out/figures/fig1-final.png"), "x\n").unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success(), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("holds `figures/fig1-final.png`, which slopewise did not write"),
+        "{}",
+        stderr(&o)
+    );
+    assert_eq!(
+        fs::read_to_string(dir.join("out/figures/fig1-final.png")).unwrap(),
+        "x\n"
+    );
+    assert!(
+        hidden_leftovers(&dir).is_empty(),
+        "{:?}",
+        hidden_leftovers(&dir)
+    );
+}
+
+#[test]
+fn a_users_report_md_in_a_folder_slopewise_never_wrote_survives() {
+    // Defect: `mypaper/report.md` (a user's notes) and `mypaper/figures/…` were
+    // replaced because their names are names slopewise writes.
+    let dir = setup("mypaper");
+    fs::create_dir_all(dir.join("mypaper/figures")).unwrap();
+    fs::write(dir.join("mypaper/report.md"), "notes\n").unwrap();
+    fs::write(dir.join("mypaper/figures/fig1-final.png"), "x\n").unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml", "--out", "mypaper"]);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("which slopewise did not write"),
+        "{}",
+        stderr(&o)
+    );
+    assert_eq!(
+        fs::read_to_string(dir.join("mypaper/report.md")).unwrap(),
+        "notes\n"
+    );
+    assert_eq!(
+        fs::read_to_string(dir.join("mypaper/figures/fig1-final.png")).unwrap(),
+        "x\n"
+    );
+}
+
+#[test]
+fn a_run_folder_of_another_plan_is_not_replaced() {
+    // Defect: a drafted plan's `out` met a demo's report folder and replaced it.
+    let dir = setup("other_plan");
+    assert!(slopewise(&dir, &["run", "plan.toml"]).status.success());
+    fs::copy(dir.join("plan.toml"), dir.join("second.toml")).unwrap();
+    let before = fs::read(dir.join("out/manifest.json")).unwrap();
+    let o = slopewise(&dir, &["run", "second.toml"]);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("holds the report of another plan (plan.toml, not second.toml)"),
+        "{}",
+        stderr(&o)
+    );
+    assert_eq!(fs::read(dir.join("out/manifest.json")).unwrap(), before);
+}
+
+#[test]
+fn the_same_plans_folder_is_replaced_whole() {
+    let dir = setup("rerun");
+    assert!(slopewise(&dir, &["run", "plan.toml"]).status.success());
+    fs::write(dir.join("out/report.md"), "edited\n").unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert_ne!(
+        fs::read_to_string(dir.join("out/report.md")).unwrap(),
+        "edited\n"
+    );
+    assert!(
+        hidden_leftovers(&dir).is_empty(),
+        "{:?}",
+        hidden_leftovers(&dir)
+    );
+}
+
+#[test]
+fn a_kill_between_the_two_renames_is_restored_by_the_next_run() {
+    // Defect: a kill at the rename left the old report only in a hidden
+    // `.previous-PID` that no later run restored. The state such a kill leaves is
+    // made by hand: the target gone, the old report aside.
+    let dir = setup("killed");
+    assert!(slopewise(&dir, &["run", "plan.toml"]).status.success());
+    let old = fs::read(dir.join("out/report.md")).unwrap();
+    fs::rename(dir.join("out"), dir.join(".out.previous-4242")).unwrap();
+    // A run that fails before writing still puts the old report back.
+    fs::write(dir.join("data.csv"), "").unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    assert_eq!(fs::read(dir.join("out/report.md")).unwrap(), old);
+    assert!(
+        hidden_leftovers(&dir).is_empty(),
+        "{:?}",
+        hidden_leftovers(&dir)
+    );
+    // And with the old report aside again, a good run restores and then replaces it.
+    fs::write(dir.join("data.csv"), unindent(THREE_PLOTS)).unwrap();
+    fs::rename(dir.join("out"), dir.join(".out.previous-4243")).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(dir.join("out/manifest.json").is_file());
+    assert!(
+        hidden_leftovers(&dir).is_empty(),
+        "{:?}",
+        hidden_leftovers(&dir)
+    );
+}
+
+#[test]
+fn stale_staging_folders_are_cleaned() {
+    // Defect: `.partial-PID` folders of killed runs stayed forever.
+    let dir = setup("stale");
+    fs::create_dir_all(dir.join(".out.partial-999/figures")).unwrap();
+    fs::write(dir.join(".out.partial-999/report.md"), "half").unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(
+        hidden_leftovers(&dir).is_empty(),
+        "{:?}",
+        hidden_leftovers(&dir)
+    );
+}
+
+#[cfg(unix)]
+#[test]
+fn a_symlinked_out_is_refused_and_the_link_kept() {
+    // Defect: a symlinked --out was replaced by a folder.
+    let dir = setup("symlink");
+    fs::create_dir_all(dir.join("real")).unwrap();
+    std::os::unix::fs::symlink("real", dir.join("link")).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml", "--out", "link"]);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("is a symbolic link (to real)"),
+        "{}",
+        stderr(&o)
+    );
+    assert!(
+        fs::symlink_metadata(dir.join("link"))
+            .unwrap()
+            .file_type()
+            .is_symlink()
+    );
+}
+
+#[test]
+fn out_inside_a_run_folder_is_refused() {
+    // Defect: `--out` pointing into an existing run folder nested runs inside it.
+    let dir = setup("nested");
+    assert!(slopewise(&dir, &["run", "plan.toml"]).status.success());
+    let o = slopewise(&dir, &["run", "plan.toml", "--out", "out/inner"]);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("would be inside the run folder out"),
+        "{}",
+        stderr(&o)
+    );
+    assert!(!dir.join("out/inner").exists());
+}
+
+#[test]
+fn the_same_plan_twice_runs_once() {
+    // Defect: the same plan twice on one command line ran twice into one folder.
+    let dir = setup("twice");
+    let o = slopewise(&dir, &["run", "plan.toml", "./plan.toml"]);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("is named twice on the command line"),
+        "{}",
+        stderr(&o)
+    );
+    assert!(dir.join("out/manifest.json").is_file());
+}
+
+#[test]
+fn two_plans_aimed_at_one_folder_are_refused() {
+    let dir = setup("one_folder");
+    fs::create_dir_all(dir.join("b")).unwrap();
+    fs::write(
+        dir.join("b/other.toml"),
+        unindent(BASE_PLAN)
+            .replace("data.csv", "../data.csv")
+            .replace("out = \"out\"", "out = \"../out\""),
+    )
+    .unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml", "b/other.toml"]);
+    assert!(!o.status.success());
+    let err = stderr(&o);
+    assert!(
+        err.contains("plan.toml and b/other.toml both write b/../out"),
+        "{err}"
+    );
+}
+
+// ---- 2. nothing hung -----------------------------------------------------------
+
+#[cfg(unix)]
+#[test]
+fn dev_zero_as_data_is_refused_at_once() {
+    // Defect: /dev/zero was read whole into memory.
+    let dir = setup("dev_zero");
+    let plan = unindent(BASE_PLAN).replace("\"data.csv\"", "\"/dev/zero\"");
+    fs::write(dir.join("plan.toml"), plan).unwrap();
+    let started = std::time::Instant::now();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    // Common practice, no source: a refusal needs no reading at all; a second is
+    // a wide margin even on a loaded machine.
+    assert!(started.elapsed() < std::time::Duration::from_secs(1));
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("is not a regular file but a character device"),
+        "{}",
+        stderr(&o)
+    );
+    assert!(!dir.join("out").exists());
+}
+
+#[test]
+fn a_file_of_zeros_is_refused_as_binary() {
+    // Defect: a 2 GB sparse file was read whole; its zeros are caught in the first
+    // bytes now (a small file stands for it here).
+    let dir = setup("zeros");
+    fs::write(dir.join("data.csv"), vec![0u8; 200_000]).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("is not text: it holds a NUL byte at byte 1"),
+        "{}",
+        stderr(&o)
+    );
+}
+
+#[test]
+fn a_utf16_file_is_named_as_utf16() {
+    // Defect: a UTF-16 file was reported as odd characters in "data row 0".
+    let dir = setup("utf16");
+    let mut bytes = vec![0xFF, 0xFE];
+    for unit in unindent(THREE_PLOTS).encode_utf16() {
+        bytes.extend_from_slice(&unit.to_le_bytes());
+    }
+    fs::write(dir.join("data.csv"), bytes).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("is UTF-16 text; slopewise reads UTF-8"),
+        "{}",
+        stderr(&o)
+    );
+}
+
+#[cfg(unix)]
+fn fifo_run(name: &str, pin: bool) -> (PathBuf, Output) {
+    let dir = setup(name);
+    let csv = unindent(THREE_PLOTS);
+    fs::remove_file(dir.join("data.csv")).unwrap();
+    assert!(
+        Command::new("mkfifo")
+            .arg(dir.join("data.csv"))
+            .status()
+            .unwrap()
+            .success()
+    );
+    if pin {
+        let plan = unindent(BASE_PLAN).replace(
+            "path = \"data.csv\"",
+            &format!(
+                "path = \"data.csv\"\nsha256 = \"{}\"",
+                slopewise::digest::sha256_hex(csv.as_bytes())
+            ),
+        );
+        fs::write(dir.join("plan.toml"), plan).unwrap();
+    }
+    let fifo = dir.join("data.csv");
+    let writer = std::thread::spawn(move || fs::write(fifo, csv));
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    writer.join().unwrap().unwrap();
+    (dir, o)
+}
+
+#[cfg(unix)]
+#[test]
+fn fifo_data_records_the_hash_of_the_bytes_parsed() {
+    // Defect: the hash, the pin check and the parse each opened the pipe, so the
+    // hash was that of an empty file, and a pinned pipe hung.
+    let (dir, o) = fifo_run("fifo", false);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let results = fs::read_to_string(dir.join("out/results.json")).unwrap();
+    let want = slopewise::digest::sha256_hex(unindent(THREE_PLOTS).as_bytes());
+    assert!(results.contains(&want), "results.json lacks {want}");
+    let (_, o) = fifo_run("fifo_pinned", true);
+    assert!(o.status.success(), "{}", stderr(&o));
+}
+
+#[cfg(unix)]
+fn fake_typst(dir: &Path, script: &str) -> PathBuf {
+    use std::os::unix::fs::PermissionsExt;
+    let fake = dir.join("fake-typst");
+    fs::write(&fake, script).unwrap();
+    fs::set_permissions(&fake, fs::Permissions::from_mode(0o755)).unwrap();
+    fake
+}
+
+#[cfg(unix)]
+fn pdf_run(dir: &Path, fake: &Path) -> Output {
+    let plan = unindent(BASE_PLAN).replace(
+        "out = \"out\"",
+        "out = \"out\"\nformats = [\"markdown\", \"json\", \"pdf\"]",
+    );
+    fs::write(dir.join("plan.toml"), plan).unwrap();
+    Command::new(env!("CARGO_BIN_EXE_slopewise"))
+        .args(["run", "plan.toml"])
+        .current_dir(dir)
+        .env("SLOPEWISE_TYPST", fake)
+        .env("SLOPEWISE_TYPST_TIMEOUT", "1")
+        .output()
+        .unwrap()
+}
+
+#[cfg(unix)]
+#[test]
+fn a_hanging_typst_is_stopped() {
+    // Defect: a typst that hangs hung the run.
+    let dir = setup("typst_hangs");
+    let fake = fake_typst(&dir, "#!/bin/sh\nexec sleep 30\n");
+    let started = std::time::Instant::now();
+    let o = pdf_run(&dir, &fake);
+    assert!(started.elapsed() < std::time::Duration::from_secs(20));
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("did not finish within 1 s and was stopped"),
+        "{}",
+        stderr(&o)
+    );
+    assert!(dir.join("out/report.md").is_file() && !dir.join("out/report.pdf").exists());
+    assert!(!String::from_utf8_lossy(&o.stdout).contains("wrote"));
+}
+
+#[cfg(unix)]
+#[test]
+fn a_typst_that_writes_no_pdf_is_not_reported_as_wrote() {
+    // Defect: a typst that exits 0 without a PDF was reported as "wrote".
+    let dir = setup("typst_no_pdf");
+    let fake = fake_typst(&dir, "#!/bin/sh\nexit 0\n");
+    let o = pdf_run(&dir, &fake);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("reported success, but no report.pdf appeared"),
+        "{}",
+        stderr(&o)
+    );
+    let cut = fake_typst(
+        &dir,
+        "#!/bin/sh\nprintf '%%PDF-1.7\\n1 0 obj' > report.pdf\n",
+    );
+    let o = pdf_run(&dir, &cut);
+    assert!(!o.status.success());
+    assert!(stderr(&o).contains("is cut short"), "{}", stderr(&o));
+    assert!(!dir.join("out/report.pdf").exists());
+}
+
+// ---- 3. honest records ---------------------------------------------------------
+
+#[test]
+fn verify_with_data_accepts_a_byte_identical_copy_elsewhere() {
+    // Defect: `verify --data` on a byte-identical copy said the folder was edited.
+    let dir = setup("verify_copy");
+    assert!(slopewise(&dir, &["run", "plan.toml"]).status.success());
+    fs::create_dir_all(dir.join("elsewhere/deeper")).unwrap();
+    fs::copy(dir.join("data.csv"), dir.join("elsewhere/deeper/copy.csv")).unwrap();
+    let o = slopewise(
+        &dir,
+        &["verify", "out", "--data", "elsewhere/deeper/copy.csv"],
+    );
+    assert!(o.status.success(), "{}", stderr(&o));
+}
+
+// ---- 4. every write checked ------------------------------------------------------
+
+#[cfg(target_os = "linux")]
+#[test]
+fn writing_to_a_full_disk_fails_with_one_line() {
+    // Defect: `slopewise schema > /dev/full` (and man, completions, init, check)
+    // exited 0 with nothing written.
+    let dir = setup("dev_full");
+    for args in [
+        &["schema"][..],
+        &["man"][..],
+        &["completions", "bash"][..],
+        &["check", "plan.toml"][..],
+        &["init", "data.csv"][..],
+    ] {
+        let full = fs::OpenOptions::new()
+            .write(true)
+            .open("/dev/full")
+            .unwrap();
+        let o = Command::new(env!("CARGO_BIN_EXE_slopewise"))
+            .args(args)
+            .current_dir(&dir)
+            .stdout(full)
+            .output()
+            .unwrap();
+        assert_eq!(o.status.code(), Some(1), "{args:?}: {}", stderr(&o));
+        assert_eq!(
+            stderr(&o).lines().count(),
+            1,
+            "{args:?}: one line, got {}",
+            stderr(&o)
+        );
+        assert!(
+            stderr(&o).contains("cannot write to standard output"),
+            "{}",
+            stderr(&o)
+        );
+    }
+}
+
+#[cfg(unix)]
+#[test]
+fn a_closed_pipe_ends_quietly_with_status_0() {
+    use std::os::fd::{FromRawFd, OwnedFd};
+    // A pipe whose reading end is closed before slopewise writes: every write
+    // fails with EPIPE, as with `slopewise schema | head -0`.
+    let mut fds = [0; 2];
+    // SAFETY: `fds` has room for the two descriptors pipe() returns.
+    assert_eq!(unsafe { libc::pipe(fds.as_mut_ptr()) }, 0);
+    // SAFETY: both descriptors were just returned by pipe() and are owned here.
+    let (read, write) = unsafe { (OwnedFd::from_raw_fd(fds[0]), OwnedFd::from_raw_fd(fds[1])) };
+    drop(read);
+    let o = Command::new(env!("CARGO_BIN_EXE_slopewise"))
+        .arg("schema")
+        .stdout(write)
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(0));
+    assert_eq!(stderr(&o), "");
+}
+
+// ---- 3. honest records: covariate values in the plan -------------------------------
+
+#[test]
+fn compare_at_nan_is_a_plan_error_at_its_line() {
+    // Defect: `compare_at = [nan]`, `[inf]` and `adjust_at = 1e308` passed
+    // validation and failed later as "a defect".
+    for (value, shown) in [("nan", "NaN"), ("inf", "inf"), ("-inf", "-inf")] {
+        let plan = format!(
+            "{}\n[tests]\ncompare_at = [5.0, {value}]\n",
+            unindent(BASE_PLAN)
+        );
+        common::Test::new(&format!("compare_at_{}", value.replace('-', "minus_")))
+            .plan(&plan)
+            .data(THREE_PLOTS)
+            .fails()
+            .stderr_has(&[
+                &format!("error: tests.compare_at must hold finite numbers; {shown} is not"),
+                // The harness drops BASE_PLAN's opening blank line: its text is
+                // lines 1-12, a blank 13, [tests] 14, the key 15; the value sits
+                // after `compare_at = [5.0, ` (19 characters), at column 20.
+                "--> plan.toml:15:20",
+            ])
+            .run();
+    }
+    let plan =
+        unindent(BASE_PLAN).replace("group = \"plot\"", "group = \"plot\"\nadjust_at = 1e308");
+    common::Test::new("adjust_at_huge")
+        .plan(&plan)
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "error: model.adjust_at holds 1e308, beyond ±1e100",
+            "--> plan.toml:10:13",
+        ])
+        .run();
+}
+
+/// Invented: two groups whose slopes clearly differ (1 and 3 per unit), covariate
+/// from `lo` to `lo + 36` in steps, with a small alternating wobble.
+fn crossing_lines(offset: f64, step: f64) -> String {
+    let mut s = String::from("plot,length_cm,mass_g\n");
+    for (g, slope) in [("a", 1.0), ("b", 3.0)] {
+        for i in 0..10 {
+            let x = offset + step * f64::from(i);
+            let wobble = if i % 2 == 0 { 0.05 } else { -0.05 };
+            s.push_str(&format!(
+                "{g},{x},{}\n",
+                slope * step * f64::from(i) + wobble
+            ));
+        }
+    }
+    s
+}
+
+#[test]
+fn compare_at_outside_the_data_is_flagged_as_extrapolation() {
+    // Defect: `compare_at = [300]` on data spanning 14–50 reported p < 0.0001 with
+    // no extrapolation flag.
+    let dir = setup("extrapolation");
+    fs::write(dir.join("data.csv"), crossing_lines(14.0, 4.0)).unwrap();
+    let plan = format!(
+        "{}\n[tests]\ncompare_at = [30.0, 300.0]\n",
+        unindent(BASE_PLAN)
+    );
+    fs::write(dir.join("plan.toml"), plan).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let results = fs::read_to_string(dir.join("out/results.json")).unwrap();
+    assert!(
+        results.contains(
+            "tests.compare_at value 300 lies outside the observed covariate range [14, 50]"
+        ),
+        "{results}"
+    );
+    assert!(
+        !results.contains("tests.compare_at value 30 "),
+        "30 lies inside"
+    );
+}
+
+#[test]
+fn a_covariate_with_a_huge_offset_warns() {
+    // Defect: x = 1e15 + U(0, 0.1) gave slopes 35–65 % off with no warning.
+    let dir = setup("offset");
+    fs::write(dir.join("data.csv"), crossing_lines(1e15, 0.01)).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    let all = format!(
+        "{}{}",
+        stderr(&o),
+        fs::read_to_string(dir.join("out/results.json")).unwrap_or_default()
+    );
+    assert!(all.contains("significant digits of its spread"), "{all}");
+    // And an ordinary covariate does not.
+    let dir = setup("no_offset");
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(o.status.success());
+    let results = fs::read_to_string(dir.join("out/results.json")).unwrap();
+    assert!(!results.contains("significant digits of its spread"));
+}
+
+#[test]
+fn a_200000_column_header_is_read_in_one_pass() {
+    // Defect: a 200,000-column header took a minute (each name was compared with
+    // every earlier one). Here the duplicate at its end must still be found and
+    // named by both positions; the run takes well under a second in a debug build
+    // (measured), where the quadratic check took minutes.
+    let dir = setup("wide_header");
+    let mut header: Vec<String> = (0..200_000).map(|i| format!("c{i}")).collect();
+    header.push("c17".into());
+    fs::write(dir.join("data.csv"), header.join(",") + "\n1\n").unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("c17"),
+        "{}",
+        &stderr(&o)[..stderr(&o).len().min(2000)]
+    );
+    assert!(
+        stderr(&o).contains("200001"),
+        "{}",
+        &stderr(&o)[..stderr(&o).len().min(2000)]
+    );
+}
