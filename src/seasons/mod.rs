@@ -25,6 +25,7 @@ use serde::{Deserialize, Serialize};
 use crate::number::{p_value, sig};
 use crate::results::{AdjustedMean, GroupLineResult, Results};
 use crate::stats::dist::{t_quantile, t_two_sided};
+use crate::stats::welch::welch_df;
 
 /// One run as the user named it.
 #[derive(Debug, Clone, PartialEq)]
@@ -378,10 +379,9 @@ fn test_change(what: &str, old: &Estimate, new: &Estimate, alpha: f64) -> Tested
     }
     let se = total.sqrt();
     let t = change / se;
-    // (v1 + v2)² / (v1²/ν1 + v2²/ν2), written with the shares w = v/(v1 + v2) so
-    // tiny or huge variances neither underflow nor overflow when squared.
-    let (w_old, w_new) = (v_old / total, v_new / total);
-    let df = 1.0 / (w_old * w_old / old.df + w_new * w_new / new.df);
+    let Some(df) = welch_df(v_old, old.df, v_new, new.df) else {
+        return untested("the statistic is not finite".into());
+    };
     let p = t_two_sided(t, df);
     if !t.is_finite() || !df.is_finite() || !p.is_finite() {
         return untested("the statistic is not finite".into());
