@@ -25,11 +25,6 @@
 #![allow(clippy::result_large_err)]
 // `!(x > 0.0)` is deliberate: it counts NaN as "not positive", which `x <= 0.0` would not.
 #![allow(clippy::neg_cmp_op_on_partial_ord)]
-// rust-version now names the toolchain CI builds with (1.95), which has let chains,
-// so clippy asks to collapse nested `if let`s and use `is_multiple_of` in code written
-// before; those change as their modules are next edited (several are being
-// rewritten now), not in one sweep.
-#![allow(clippy::collapsible_if, clippy::manual_is_multiple_of)]
 
 pub mod analysis;
 pub mod app;

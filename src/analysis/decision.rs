@@ -104,13 +104,12 @@ pub(super) fn conclude(
         LEAD_SEPARATE
     };
     let models = models(lead, &r.checks.influence.model, limits_model);
-    if !models.agree {
-        if let (Some(pooling), Some(limits)) = (&r.pooling, limits_model) {
-            if limits != "not-decided" {
-                // Said first: every later number is read with its model in mind.
-                warnings.insert(0, levels_disagree(&r, pooling.alpha, homogeneous, limits));
-            }
-        }
+    if !models.agree
+        && let (Some(pooling), Some(limits)) = (&r.pooling, limits_model)
+        && limits != "not-decided"
+    {
+        // Said first: every later number is read with its model in mind.
+        warnings.insert(0, levels_disagree(&r, pooling.alpha, homogeneous, limits));
     }
     r.decision = Decision {
         homogeneous,
@@ -189,23 +188,23 @@ fn check_warnings(
             )
         });
     }
-    if let Some(p) = c.covariate_balance.p_value.filter(|p| *p < alpha) {
-        if homogeneous {
-            warnings.push(format!(
+    if let Some(p) = c.covariate_balance.p_value.filter(|p| *p < alpha)
+        && homogeneous
+    {
+        warnings.push(format!(
                 "The groups differ in their {covariate} values (one-way F test, {}). Adjusted means then lean on the common slope to bridge the gap between groups; check that the lines are straight across the whole range.",
                 p_equation(p)
             ));
-        }
     }
-    if let Some(overlap) = c.covariate_balance.overlap {
-        if r.adjust_at < overlap[0] || r.adjust_at > overlap[1] {
-            warnings.push(format!(
+    if let Some(overlap) = c.covariate_balance.overlap
+        && (r.adjust_at < overlap[0] || r.adjust_at > overlap[1])
+    {
+        warnings.push(format!(
                 "The adjustment point {covariate} = {} lies outside the range every group covers ({} to {}).",
                 sig(r.adjust_at, 4),
                 sig(overlap[0], 4),
                 sig(overlap[1], 4)
             ));
-        }
     }
     let flagged = c.influence.flagged_total;
     if flagged > 0 && !plan.checks.sensitivity {

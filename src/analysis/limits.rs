@@ -291,16 +291,16 @@ pub(super) fn crossings(
                     sig(line.observed[0], 4)
                 ));
             }
-            if let Some(c) = crossing {
-                if c > line.observed[1] {
-                    warnings.push(format!(
+            if let Some(c) = crossing
+                && c > line.observed[1]
+            {
+                warnings.push(format!(
                         "The {side}-limit crossing for `{}` at {} lies {} beyond the last observed covariate value ({}): it is an extrapolation, and whether it may be used is for the applicable guidance to say.",
                         line.level,
                         sig(c, 4),
                         sig(c - line.observed[1], 3),
                         sig(line.observed[1], 4)
                     ));
-                }
             }
             out.push(LimitCrossing {
                 level: line.level.clone(),
@@ -319,15 +319,15 @@ pub(super) fn crossings(
                 model: model.to_string(),
             });
         }
-        if model != "pooled" {
-            if let Some((already_beyond, crossing, level)) = first {
-                earliest.push(EarliestCrossing {
-                    side: side.to_string(),
-                    level,
-                    crossing,
-                    already_beyond,
-                });
-            }
+        if model != "pooled"
+            && let Some((already_beyond, crossing, level)) = first
+        {
+            earliest.push(EarliestCrossing {
+                side: side.to_string(),
+                level,
+                crossing,
+                already_beyond,
+            });
         }
     }
     (out, earliest)

@@ -93,7 +93,7 @@ pub fn to_hex(bytes: &[u8]) -> String {
 
 /// Bytes from hex digits (either case); `None` when the text is not hex.
 pub fn from_hex(hex: &str) -> Option<Vec<u8>> {
-    if hex.len() % 2 != 0 || !hex.bytes().all(|b| b.is_ascii_hexdigit()) {
+    if !hex.len().is_multiple_of(2) || !hex.bytes().all(|b| b.is_ascii_hexdigit()) {
         return None;
     }
     (0..hex.len())

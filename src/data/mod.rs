@@ -364,11 +364,11 @@ impl<'a> Sorter<'a> {
     /// The group a label belongs to, created on first sight unless `levels` lists
     /// the groups. Consecutive rows of one group skip the lookup.
     fn slot(&self, label: &[u8], row: u64, line: u64, part: &mut Part) -> Result<usize, DataError> {
-        if let Some((l, i)) = &part.last {
-            if same_bytes(l, label) {
-                part.seen_level[*i] = true;
-                return Ok(*i);
-            }
+        if let Some((l, i)) = &part.last
+            && same_bytes(l, label)
+        {
+            part.seen_level[*i] = true;
+            return Ok(*i);
         }
         let known = (part.groups.len() <= LINEAR_LOOKUP)
             .then(|| {

@@ -114,10 +114,10 @@ where
 
     // Without quotes the first half reads exactly as one pass would up to the cut,
     // so its own error stands whatever the second half holds.
-    if !first.scan.quoted() {
-        if let Err(e) = first.read {
-            return Some(Err(e));
-        }
+    if !first.scan.quoted()
+        && let Err(e) = first.read
+    {
+        return Some(Err(e));
     }
     let second = match second {
         Ok(second) => second,

@@ -480,14 +480,14 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                     "give the limit the mean response must respect, e.g. `lower = 95.0`",
                 ));
             }
-            if let (Some(lo), Some(hi)) = (lower, upper) {
-                if lo >= hi {
-                    return Err(err(
-                        span,
-                        format!("limits.lower ({lo}) must be below limits.upper ({hi})"),
-                        "swap them, or check the numbers",
-                    ));
-                }
+            if let (Some(lo), Some(hi)) = (lower, upper)
+                && lo >= hi
+            {
+                return Err(err(
+                    span,
+                    format!("limits.lower ({lo}) must be below limits.upper ({hi})"),
+                    "swap them, or check the numbers",
+                ));
             }
             let confidence = match &l.confidence {
                 None => 0.95,

@@ -716,19 +716,19 @@ pub fn trend(runs: &[Run], alpha: f64) -> Trend {
         })
         .collect();
     let last = runs.last().map(|r| &r.results.model);
-    if let Some(last) = last {
-        if runs.iter().any(|r| {
+    if let Some(last) = last
+        && runs.iter().any(|r| {
             r.results.model.response != last.response
                 || r.results.model.covariate != last.covariate
                 || r.results.model.response_transform != last.response_transform
                 || r.results.model.covariate_transform != last.covariate_transform
-        }) {
-            notes.push(
-                "The runs do not all model the same response on the same covariate with the \
+        })
+    {
+        notes.push(
+            "The runs do not all model the same response on the same covariate with the \
                  same transforms; their slopes are not on one scale."
-                    .into(),
-            );
-        }
+                .into(),
+        );
     }
     Trend {
         alpha,

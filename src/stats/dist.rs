@@ -160,10 +160,11 @@ pub fn t_two_sided(t: f64, df: f64) -> f64 {
     if t.is_infinite() {
         return 0.0;
     }
-    if df >= T_EXPANSION_DF && df.is_finite() {
-        if let Some(p) = t_two_sided_by_expansion(t.abs(), df) {
-            return p;
-        }
+    if df >= T_EXPANSION_DF
+        && df.is_finite()
+        && let Some(p) = t_two_sided_by_expansion(t.abs(), df)
+    {
+        return p;
     }
     let (x, y) = t_xy(t, df);
     beta_tails(df / 2.0, 0.5, x, y).0
