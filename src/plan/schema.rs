@@ -79,6 +79,34 @@ pub(super) struct RawLimits {
     pub lower: Option<Spanned<f64>>,
     pub upper: Option<Spanned<f64>>,
     pub confidence: Option<Spanned<f64>>,
+    pub bound: Option<Spanned<BoundKind>>,
+    pub storage: Option<Spanned<Storage>>,
+    pub extrapolation_factor: Option<Spanned<f64>>,
+    pub max_beyond: Option<Spanned<f64>>,
+    pub accelerated_change: Option<Spanned<bool>>,
+    pub round_to: Option<Spanned<f64>>,
+}
+
+/// Which bound of a line is compared with the limits.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum BoundKind {
+    /// The confidence bound of the mean line (the default).
+    Mean,
+    /// The prediction bound for a single future result.
+    Prediction,
+}
+
+/// The storage class whose extrapolation rule caps the supported period.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Storage {
+    /// Room temperature.
+    Room,
+    /// Refrigerated.
+    Refrigerated,
+    /// Frozen.
+    Frozen,
 }
 
 /// How the model for the rest of the report is chosen.
