@@ -30,7 +30,7 @@
 //! rounded down to `round_to` (see [`supported`]).
 
 use crate::fit::{CommonSlopeFit, OneLineFit, SeparateFit};
-use crate::number::sig;
+use crate::number::{sig, trimmed};
 use crate::plan::{BoundKind, Extrapolation, LimitSpec, Plan, Procedure, Storage};
 use crate::results::{EarliestCrossing, LimitCrossing, Pooling, SupportedPeriod};
 use crate::stats::dist::t_quantile;
@@ -389,7 +389,7 @@ fn cap(
         Extrapolation::Storage(Storage::Frozen) => "frozen",
         Extrapolation::Explicit { .. } => "explicit",
     };
-    let c = sig(covered, 6);
+    let c = trimmed(covered, 6);
     if accelerated_change {
         return (
             Some(covered),
@@ -425,7 +425,10 @@ fn cap(
     (
         Some(cap),
         name,
-        format!("{why}; the data cover {c}, so the cap is {}", sig(cap, 6)),
+        format!(
+            "{why}; the data cover {c}, so the cap is {}",
+            trimmed(cap, 6)
+        ),
     )
 }
 

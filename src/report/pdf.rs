@@ -562,12 +562,22 @@ fn limits(b: &mut Builder, r: &Results, x: &str, y: &str) {
         format!("{}%", trimmed(100.0 * c.confidence, 4))
     });
     b.para(format!(
-        "Each crossing is the {x} value where the one-sided {conf} confidence bound of the mean {y} meets the limit, read from {}.",
+        "Each crossing is the {x} value where the one-sided {conf} {} {y} meets the limit, read from {}.{}",
+        if r.limits.first().is_some_and(|c| c.bound == "prediction") {
+            "prediction bound for a single future"
+        } else {
+            "confidence bound of the mean"
+        },
         match model {
             "not-decided" => "no line: the pooling steps stopped before choosing one",
             "pooled" => "the one pooled line",
             "common-slope" => "the parallel lines (one slope, each group's own intercept)",
             _ => "each group's own line and residual variance",
+        },
+        if r.limits.first().is_some_and(|c| c.two_sided) {
+            " With both limits, each side uses the one-sided level (1 + confidence)/2, so the two sides together hold at the plan's confidence (ICH Q1E 2003)."
+        } else {
+            ""
         }
     ));
     b.table(
@@ -621,6 +631,36 @@ fn limits(b: &mut Builder, r: &Results, x: &str, y: &str) {
                 sig(e.crossing, 4)
             )
         });
+    }
+    if let Some(s) = &r.limits_supported {
+        let period = match (s.supported, s.reason.as_deref()) {
+            (Some(v), _) => format!(
+                "{x} = {}, rounded down to a step of {}",
+                sig(v, 4),
+                sig(s.round_to, 4)
+            ),
+            (None, Some("beyond-at-start")) => {
+                "none, a line is past the limit from its first observation".into()
+            }
+            (None, Some("never-within")) => {
+                "none, no bound meets a limit and the plan gives no extrapolation rule".into()
+            }
+            _ => "none, no line was chosen".into(),
+        };
+        let raw = match (s.raw_crossing, &s.limiting_level, &s.limiting_side) {
+            (Some(v), Some(l), Some(side)) => format!("{} ({l}, {side} limit)", sig(v, 4)),
+            _ => "none".into(),
+        };
+        let cap = match s.cap {
+            Some(c) if s.capped => format!("{}, which sets the period", sig(c, 4)),
+            Some(c) => sig(c, 4),
+            None => "none".into(),
+        };
+        b.para(format!(
+            "Supported period: {period}. Raw crossing: {raw}; the data cover {x} up to {}; cap: {cap}, because {}.",
+            sig(s.covered, 4),
+            s.cap_reason
+        ));
     }
     b.para("These estimates support, and do not replace, the evaluation that the applicable guidance (for stability data, ICH Q1E) and a qualified person require. Whether, and how far, an estimate may be extrapolated beyond the observed data is for that guidance to decide.");
 }
