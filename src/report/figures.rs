@@ -478,6 +478,30 @@ fn limit_line_at(
     model: &str,
     t: f64,
     x: f64,
+    prediction: bool,
+) -> Option<(f64, Option<f64>)> {
+    let (fit, half) = limit_mean_at(r, level, model, t, x)?;
+    if !prediction {
+        return Some((fit, half));
+    }
+    // The prediction bound for one future result adds s² to the mean's variance.
+    let s = match model {
+        "pooled" => r.one_line.residual_sd,
+        "common-slope" => r.common_slope.residual_sd,
+        _ => r.groups.iter().find(|g| g.level == level)?.residual_sd,
+    };
+    Some((
+        fit,
+        half.zip(s).map(|(h, s)| (h * h + t * t * s * s).sqrt()),
+    ))
+}
+
+fn limit_mean_at(
+    r: &Results,
+    level: &str,
+    model: &str,
+    t: f64,
+    x: f64,
 ) -> Option<(f64, Option<f64>)> {
     match model {
         "pooled" => {
@@ -551,7 +575,8 @@ fn limits(ctx: &Context) -> Result<Figure, String> {
                 .unwrap_or(k)
         };
         let curve = curve(lo, hi, |x| {
-            limit_line_at(r, &c.level, model, t, x).unwrap_or((f64::NAN, None))
+            limit_line_at(r, &c.level, model, t, x, c.bound == "prediction")
+                .unwrap_or((f64::NAN, None))
         });
         for &(_, y, h) in &curve {
             ys.add(y);
@@ -657,11 +682,16 @@ fn limits(ctx: &Context) -> Result<Figure, String> {
         })
         .collect();
     let caption = format!(
-        "Each line the crossings are read from ({}), its one-sided {level}% confidence bound of the mean, and the limits (dashed). Crossings: {}. {}",
+        "Each line the crossings are read from ({}), its one-sided {level}% {}, and the limits (dashed). Crossings: {}. {}",
         match model {
             "pooled" => "the pooled line",
             "common-slope" => "parallel lines",
             _ => "each group's own line",
+        },
+        if first.bound == "prediction" {
+            "prediction bound for a single future result"
+        } else {
+            "confidence bound of the mean"
         },
         if crossings.is_empty() {
             "none".to_string()
@@ -1856,6 +1886,37 @@ mod tests {
 
     fn close(a: f64, b: f64) -> bool {
         (a - b).abs() <= 1e-9 * b.abs().max(1.0)
+    }
+
+    #[test]
+    fn the_prediction_band_drawn_meets_the_limit_at_each_crossing() {
+        // The invented reference data of tests/reference (generate_limits.py, case
+        // limits_prediction): separate lines, prediction bounds, lower limit 95.
+        let csv = include_str!("../../tests/reference/data/limits_prediction.csv");
+        let plan = "title = \"p\"\n[data]\npath = \"d.csv\"\n[model]\nresponse = \"assay_pct\"\ncovariate = \"months\"\ngroup = \"lot\"\n[limits]\nlower = 95.0\nbound = \"prediction\"\n[tests]\nprocedure = \"lot-pooling\"\n";
+        let plan = crate::plan::load("p.toml", plan).unwrap();
+        let data = crate::data::load(&plan, csv.as_bytes()).unwrap();
+        let r = crate::analysis::run(&plan, &data, Provenance::default()).unwrap();
+        assert_eq!(r.limits.len(), 3);
+        for c in &r.limits {
+            assert_eq!(
+                (c.model.as_str(), c.bound.as_str()),
+                ("separate", "prediction")
+            );
+            let g = r.groups.iter().find(|g| g.level == c.level).unwrap();
+            let t = t_quantile(c.confidence, g.n as f64 - 2.0);
+            let x = c.crossing.unwrap();
+            let (fit, half) = limit_line_at(&r, &c.level, "separate", t, x, true).unwrap();
+            assert!(
+                close(fit - half.unwrap(), 95.0),
+                "{}: {}",
+                c.level,
+                fit - half.unwrap()
+            );
+            // The mean's band is narrower there, so it is still above the limit.
+            let (fit, half) = limit_line_at(&r, &c.level, "separate", t, x, false).unwrap();
+            assert!(fit - half.unwrap() > 95.0 + 1e-6);
+        }
     }
 
     // Reference values from statsmodels 0.15.0 (numpy 2.4.6, scipy 1.17.1), design
