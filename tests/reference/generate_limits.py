@@ -183,6 +183,17 @@ CASES: dict[str, dict] = {
         "tests": {"alpha": 0.05, "comparisons": "holm", "procedure": "lot-pooling",
                   "pooling_alpha": 0.25},
     },
+    # A rising impurity against an upper limit, prediction bounds: the upper side of
+    # the prediction bound, crossings solved for each separate lot.
+    "limits_prediction_upper": {
+        "seed": 95,
+        "title": "Reference: invented stability data, a rising impurity, prediction bound",
+        "response": "impurity_pct", "decimals": 3, "sd": 0.025,
+        "lots": [("L-951", 0.08, 0.014), ("L-952", 0.10, 0.021), ("L-953", 0.07, 0.016)],
+        "limits": {"upper": 0.5, "confidence": 0.95, "bound": "prediction"},
+        "tests": {"alpha": 0.05, "comparisons": "holm", "procedure": "lot-pooling",
+                  "pooling_alpha": 0.25},
+    },
 }
 
 
@@ -576,6 +587,13 @@ def check_property(name: str, result: dict, plan: dict, plan_path: Path) -> None
         assert model == "pooled"
         assert all(e["two_sided"] and e["confidence"] == 0.975 for e in limits)
         assert entry(result, "pooled", "lower")["crossing"] is not None
+    elif name == "limits_prediction_upper":
+        assert {e["side"] for e in limits} == {"upper"}
+        assert all(e["bound"] == "prediction" for e in limits)
+        assert all(e["crossing"] is not None for e in limits)
+        for e in limits:
+            mean = crossing(mean_line(result, e["level"]), "upper", 0.5, 0.95)[0]
+            assert e["crossing"] < mean, (e["crossing"], mean)
     else:
         raise AssertionError(f"no property check for {name}")
 
