@@ -58,6 +58,10 @@ pub struct Results {
     pub limits: Vec<LimitCrossing>,
     /// The earliest crossing per side when lines are not pooled.
     pub limits_earliest: Vec<EarliestCrossing>,
+    /// The raw crossing, the extrapolation cap and the period it supports, rounded
+    /// down, when the plan has limits.
+    #[serde(default)]
+    pub limits_supported: Option<SupportedPeriod>,
     /// The lot-pooling procedure, when the plan chose it.
     pub pooling: Option<Pooling>,
     /// What the gate decided and which comparison leads the report.
@@ -557,8 +561,16 @@ pub struct LimitCrossing {
     pub limit: f64,
     /// "lower" or "upper".
     pub side: String,
-    /// One-sided confidence of the bound.
+    /// One-sided confidence of the bound: the plan's confidence with one limit,
+    /// (1 + confidence)/2 with both.
     pub confidence: f64,
+    /// "mean" (confidence bound of the mean line) or "prediction" (bound for a
+    /// single future result).
+    #[serde(default)]
+    pub bound: String,
+    /// True when the response has both limits, so each side uses the two-sided level.
+    #[serde(default)]
+    pub two_sided: bool,
     /// Covariate value where the bound meets the limit, or null.
     pub crossing: Option<f64>,
     /// Why there is no crossing, null otherwise: "never-within" (the bound never
@@ -576,6 +588,34 @@ pub struct LimitCrossing {
     pub beyond: Option<f64>,
     /// "separate", "common-slope", "pooled" or "not-decided".
     pub model: String,
+}
+
+/// The period the crossings support once an extrapolation rule caps them.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SupportedPeriod {
+    /// The earliest crossing over every line and side, or null when none crosses.
+    pub raw_crossing: Option<f64>,
+    /// The line and side of that crossing.
+    pub limiting_level: Option<String>,
+    /// "lower" or "upper".
+    pub limiting_side: Option<String>,
+    /// The last observed covariate value: the period the data cover.
+    pub covered: f64,
+    /// The longest period the rule allows, or null when the plan gives no rule.
+    pub cap: Option<f64>,
+    /// "room", "refrigerated", "frozen", "explicit" or "none".
+    pub rule: String,
+    /// Why the cap is what it is, in words.
+    pub cap_reason: String,
+    /// True when the cap, not the crossing, sets the period.
+    pub capped: bool,
+    /// The step the period is rounded down to.
+    pub round_to: f64,
+    /// The supported period, rounded down to `round_to`, or null.
+    pub supported: Option<f64>,
+    /// Why there is no supported period, null otherwise: "beyond-at-start",
+    /// "never-within" (no crossing and no cap), "not-decided".
+    pub reason: Option<String>,
 }
 
 /// The earliest crossing of one side among the groups' lines.

@@ -855,3 +855,66 @@ fn more_than_two_hundred_groups_run_with_tables_cut_and_no_nan() {
         );
     }
 }
+
+#[test]
+fn bad_limits_keys_point_at_their_value() {
+    // (name, the [limits] lines after `lower = 95.0`, message, line:column, help).
+    let cases = [
+        (
+            "max_beyond_negative",
+            "max_beyond = -6",
+            "error: limits.max_beyond must be a finite number of at least 0, found -6",
+            "--> plan.toml:13:14",
+            "help: how far beyond the last observation the period may go",
+        ),
+        (
+            "round_to_zero",
+            "round_to = 0",
+            "error: limits.round_to must be a number above 0, found 0",
+            "--> plan.toml:13:12",
+            "help: the step the supported period is rounded down to",
+        ),
+        (
+            "lower_not_below_upper",
+            "upper = 90.0",
+            "error: limits.lower (95) must be below limits.upper (90)",
+            "--> plan.toml:13:9",
+            "help: swap them, or check the numbers",
+        ),
+        (
+            "storage_and_factor",
+            "storage = \"room\"\nextrapolation_factor = 1.5",
+            "error: limits.storage and an explicit extrapolation_factor / max_beyond are given together",
+            "--> plan.toml:14:24",
+            "help: keep either `storage`",
+        ),
+    ];
+    for (name, lines, what, at, help) in cases {
+        let lines = lines.replace('\n', "\n                ");
+        Test::new(name)
+            .plan(&format!(
+                r#"
+                title = "Leaf mass by hillside plot (invented test data)"
+
+                [data]
+                path = "data.csv"
+
+                [model]
+                response = "mass_g"
+                covariate = "length_cm"
+                group = "plot"
+
+                [limits]
+                lower = 95.0
+                {lines}
+
+                [report]
+                out = "out"
+                "#
+            ))
+            .data(THREE_PLOTS)
+            .fails()
+            .stderr_has(&[what, at, help])
+            .run();
+    }
+}

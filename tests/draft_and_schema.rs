@@ -651,6 +651,32 @@ fn schema_and_loader_refuse_the_same_broken_plans() {
             format!("{GOOD}[limits]\nlow = 1.0\n"),
         ),
         (
+            "unknown bound",
+            format!("{GOOD}[limits]\nlower = 1.0\nbound = \"interval\"\n"),
+        ),
+        (
+            "max_beyond negative",
+            format!("{GOOD}[limits]\nlower = 1.0\nextrapolation_factor = 1.5\nmax_beyond = -6\n"),
+        ),
+        (
+            "extrapolation_factor below 1",
+            format!("{GOOD}[limits]\nlower = 1.0\nextrapolation_factor = 0.5\nmax_beyond = 6\n"),
+        ),
+        (
+            "storage with an explicit factor",
+            format!(
+                "{GOOD}[limits]\nlower = 1.0\nstorage = \"room\"\nextrapolation_factor = 1.5\nmax_beyond = 6\n"
+            ),
+        ),
+        (
+            "unknown storage",
+            format!("{GOOD}[limits]\nlower = 1.0\nstorage = \"cold\"\n"),
+        ),
+        (
+            "round_to 0",
+            format!("{GOOD}[limits]\nlower = 1.0\nround_to = 0\n"),
+        ),
+        (
             "unknown procedure",
             GOOD.replace("alpha = 0.05", "procedure = \"pooling\""),
         ),
@@ -847,7 +873,7 @@ const TABLES: [(&str, &str); 10] = [
 ];
 
 /// The serde enums of plan values, and the schema nodes that hold their names.
-const ENUMS: [(&str, &[&str]); 5] = [
+const ENUMS: [(&str, &[&str]); 7] = [
     (
         "Transform",
         &["model.transform.response", "model.transform.covariate"],
@@ -856,6 +882,8 @@ const ENUMS: [(&str, &[&str]); 5] = [
     ("Regions", &["tests.regions"]),
     ("Procedure", &["tests.procedure"]),
     ("Format", &["report.formats.[]"]),
+    ("BoundKind", &["limits.bound"]),
+    ("Storage", &["limits.storage"]),
 ];
 
 /// Struct and enum blocks of `src/plan/schema.rs`: name -> (fields or variants, the

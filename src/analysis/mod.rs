@@ -400,6 +400,10 @@ fn procedure(
         ),
         None => (Vec::new(), Vec::new()),
     };
+    let limits_supported = plan
+        .limits
+        .as_ref()
+        .map(|spec| limits::supported(spec, &limit_model, &limits));
 
     let results = Results {
         title: plan.title.clone(),
@@ -452,6 +456,7 @@ fn procedure(
         sensitivity: None,
         limits,
         limits_earliest,
+        limits_supported,
         pooling,
         decision: decision::placeholder(),
         warnings: Vec::new(),

@@ -10,7 +10,9 @@ mod error;
 mod schema;
 
 pub use error::PlanError;
-pub use schema::{Comparisons, Format, Procedure, Regions, Transform, derived_json_schema};
+pub use schema::{
+    BoundKind, Comparisons, Format, Procedure, Regions, Storage, Transform, derived_json_schema,
+};
 
 use std::ops::Range;
 use toml::Spanned;
@@ -148,8 +150,41 @@ pub struct LimitSpec {
     pub lower: Option<f64>,
     /// The mean must stay at or below this.
     pub upper: Option<f64>,
-    /// One-sided confidence of the bound compared with the limits.
+    /// Confidence of the bound compared with the limits: one-sided with one limit;
+    /// with both limits each side uses the one-sided level (1 + confidence)/2.
     pub confidence: f64,
+    /// The mean line's confidence bound or the prediction bound of one result.
+    pub bound: BoundKind,
+    /// How far beyond the observed period the supported period may go, if a rule
+    /// was given.
+    pub extrapolation: Option<Extrapolation>,
+    /// The accelerated data showed significant change: no extrapolation.
+    pub accelerated_change: bool,
+    /// The supported period is rounded down to a multiple of this (covariate units).
+    pub round_to: f64,
+}
+
+impl LimitSpec {
+    /// The one-sided level each side's bound uses: the plan's confidence with one
+    /// limit, (1 + confidence)/2 with both (two-sided criteria, ICH Q1E 2003, from
+    /// memory).
+    pub fn one_sided_level(&self) -> f64 {
+        if self.lower.is_some() && self.upper.is_some() {
+            0.5 * (1.0 + self.confidence)
+        } else {
+            self.confidence
+        }
+    }
+}
+
+/// An extrapolation rule: a storage class's rule or explicit numbers.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Extrapolation {
+    /// The rule for a storage class (see `analysis::limits` for the values).
+    Storage(Storage),
+    /// At most `factor` times the observed period and at most `max_beyond` beyond it
+    /// (either infinite when the plan leaves it out).
+    Explicit { factor: f64, max_beyond: f64 },
 }
 
 /// The `[checks]` table.
@@ -484,7 +519,7 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                 && lo >= hi
             {
                 return Err(err(
-                    span,
+                    l.upper.as_ref().map_or(span.clone(), |u| u.span()),
                     format!("limits.lower ({lo}) must be below limits.upper ({hi})"),
                     "swap them, or check the numbers",
                 ));
@@ -503,10 +538,71 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                     ));
                 }
             };
+            let at_least = |v: &Spanned<f64>, key: &str, floor: f64, help: &str| {
+                let x = *v.get_ref();
+                if x.is_finite() && x >= floor {
+                    Ok(x)
+                } else {
+                    Err(err(
+                        v.span(),
+                        format!("{key} must be a finite number of at least {floor}, found {x}"),
+                        help,
+                    ))
+                }
+            };
+            let round_to = match &l.round_to {
+                None => 1.0,
+                Some(r) if r.get_ref().is_finite() && *r.get_ref() > 0.0 => *r.get_ref(),
+                Some(r) => {
+                    return Err(err(
+                        r.span(),
+                        format!(
+                            "limits.round_to must be a number above 0, found {}",
+                            r.get_ref()
+                        ),
+                        "the step the supported period is rounded down to, in covariate units, e.g. 1 or 3",
+                    ));
+                }
+            };
+            let extrapolation = match (&l.storage, &l.extrapolation_factor, &l.max_beyond) {
+                (None, None, None) => None,
+                (Some(s), None, None) => Some(Extrapolation::Storage(*s.get_ref())),
+                (Some(_), Some(e), _) | (Some(_), None, Some(e)) => {
+                    return Err(err(
+                        e.span(),
+                        "limits.storage and an explicit extrapolation_factor / max_beyond are given together".into(),
+                        "keep either `storage` (its rule sets the cap) or `extrapolation_factor` with `max_beyond`, not both",
+                    ));
+                }
+                (None, f, m) => Some(Extrapolation::Explicit {
+                    factor: match f {
+                        Some(f) => at_least(
+                            f,
+                            "limits.extrapolation_factor",
+                            1.0,
+                            "a factor of 1 or more, e.g. 1.5 (1 means no extrapolation)",
+                        )?,
+                        None => f64::INFINITY,
+                    },
+                    max_beyond: match m {
+                        Some(m) => at_least(
+                            m,
+                            "limits.max_beyond",
+                            0.0,
+                            "how far beyond the last observation the period may go, in covariate units, 0 or more, e.g. 6",
+                        )?,
+                        None => f64::INFINITY,
+                    },
+                }),
+            };
             Some(LimitSpec {
                 lower,
                 upper,
                 confidence,
+                bound: l.bound.as_ref().map_or(BoundKind::Mean, |b| *b.get_ref()),
+                extrapolation,
+                accelerated_change: l.accelerated_change.as_ref().is_some_and(|a| *a.get_ref()),
+                round_to,
             })
         }
     };

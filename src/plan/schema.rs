@@ -200,6 +200,56 @@ pub(super) struct RawLimits {
     /// and 1.
     #[schemars(with = "Option<f64>", extend("exclusiveMinimum" = 0.5, "exclusiveMaximum" = 1, "default" = 0.95, "examples" = [0.99]))]
     pub confidence: Option<Spanned<f64>>,
+    /// Which bound is compared with the limits: "mean", the confidence bound of the
+    /// mean line, or "prediction", the prediction bound for a single future result.
+    #[schemars(with = "Option<BoundKind>", extend("default" = "mean", "examples" = ["prediction"]))]
+    pub bound: Option<Spanned<BoundKind>>,
+    /// Storage class whose extrapolation rule caps the supported period (covariate in
+    /// months): "room" up to twice the covered period and at most 12 beyond it,
+    /// "refrigerated" up to 1.5 times and at most 6 beyond (ICH Q1E 2003, quoted from
+    /// memory), "frozen" no extrapolation (this tool's reading). Not together with
+    /// extrapolation_factor / max_beyond.
+    #[schemars(with = "Option<Storage>", extend("examples" = ["room"]))]
+    pub storage: Option<Spanned<Storage>>,
+    /// Explicit rule: the supported period is at most this many times the period the
+    /// data cover (1 or more; without it, no factor limit). Not together with storage.
+    #[schemars(with = "Option<f64>", extend("minimum" = 1, "examples" = [1.5]))]
+    pub extrapolation_factor: Option<Spanned<f64>>,
+    /// Explicit rule: the supported period goes at most this far beyond the last
+    /// observation, in covariate units (0 or more; without it, no such limit). Not
+    /// together with storage.
+    #[schemars(with = "Option<f64>", extend("minimum" = 0, "examples" = [6]))]
+    pub max_beyond: Option<Spanned<f64>>,
+    /// The accelerated data showed significant change: no extrapolation beyond the
+    /// observed period, whatever the storage rule.
+    #[schemars(with = "Option<bool>", extend("default" = false, "examples" = [true]))]
+    pub accelerated_change: Option<Spanned<bool>>,
+    /// The supported period is rounded down to a multiple of this, in covariate units
+    /// (above 0).
+    #[schemars(with = "Option<f64>", extend("exclusiveMinimum" = 0, "default" = 1, "examples" = [3]))]
+    pub round_to: Option<Spanned<f64>>,
+}
+
+/// Which bound of a line is compared with the limits.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
+#[serde(rename_all = "kebab-case")]
+pub enum BoundKind {
+    /// The confidence bound of the mean line (the default).
+    Mean,
+    /// The prediction bound for a single future result.
+    Prediction,
+}
+
+/// The storage class whose extrapolation rule caps the supported period.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
+#[serde(rename_all = "kebab-case")]
+pub enum Storage {
+    /// Room temperature.
+    Room,
+    /// Refrigerated.
+    Refrigerated,
+    /// Frozen.
+    Frozen,
 }
 
 /// How the model for the rest of the report is chosen.

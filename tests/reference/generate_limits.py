@@ -163,6 +163,37 @@ CASES: dict[str, dict] = {
         "limits": {"lower": 95.0, "upper": 105.0, "confidence": 0.95},
         "tests": {"alpha": 0.05, "slopes_alpha": 0.05, "comparisons": "holm"},
     },
+    # The prediction bound of a single future result, one lower limit, separate lines:
+    # wider than the mean's bound, so each lot crosses earlier than its mean bound does.
+    "limits_prediction": {
+        "seed": 91,
+        "title": "Reference: invented stability data, prediction bound for one result",
+        "response": "assay_pct", "decimals": 2, "sd": 0.45,
+        "lots": [("L-901", 100.7, -0.14), ("L-902", 100.3, -0.30), ("L-903", 100.5, -0.15)],
+        "limits": {"lower": 95.0, "confidence": 0.95, "bound": "prediction"},
+        "tests": {"alpha": 0.05, "comparisons": "holm", "procedure": "lot-pooling"},
+    },
+    # Both limits with the prediction bound on one pooled line: each side at 0.975.
+    "limits_prediction_two_sided": {
+        "seed": 94,
+        "title": "Reference: invented stability data, two-sided prediction bounds",
+        "response": "assay_pct", "decimals": 2, "sd": 0.5,
+        "lots": [("L-931", 100.2, -0.19), ("L-932", 100.2, -0.19), ("L-933", 100.2, -0.19)],
+        "limits": {"lower": 95.0, "upper": 105.0, "confidence": 0.95, "bound": "prediction"},
+        "tests": {"alpha": 0.05, "comparisons": "holm", "procedure": "lot-pooling",
+                  "pooling_alpha": 0.25},
+    },
+    # A rising impurity against an upper limit, prediction bounds: the upper side of
+    # the prediction bound, crossings solved for each separate lot.
+    "limits_prediction_upper": {
+        "seed": 95,
+        "title": "Reference: invented stability data, a rising impurity, prediction bound",
+        "response": "impurity_pct", "decimals": 3, "sd": 0.025,
+        "lots": [("L-951", 0.08, 0.014), ("L-952", 0.10, 0.021), ("L-953", 0.07, 0.016)],
+        "limits": {"upper": 0.5, "confidence": 0.95, "bound": "prediction"},
+        "tests": {"alpha": 0.05, "comparisons": "holm", "procedure": "lot-pooling",
+                  "pooling_alpha": 0.25},
+    },
 }
 
 
@@ -231,25 +262,29 @@ class Line:
         self.observed_min = float(np.min(x[mask]))
         self.observed_max = float(np.max(x[mask]))
         self.slope = float(e1 @ np.asarray(res.params))
+        self.obs = False                            # set from the plan's `bound`
 
     def exog(self, x: float) -> np.ndarray:
         return (self.e0 + x * self.e1)[None, :]
 
     def bound(self, x: float, side: str, confidence: float) -> float:
         """statsmodels' one-sided bound: the lower or upper end of the two-sided
-        interval at 1 - 2 (1 - confidence)."""
-        ci = self.res.get_prediction(exog=self.exog(x)).conf_int(alpha=2 * (1 - confidence))
+        interval at 1 - 2 (1 - confidence); obs=False for the mean line's confidence
+        bound, obs=True for the prediction bound of a single future result."""
+        ci = self.res.get_prediction(exog=self.exog(x)).conf_int(
+            obs=self.obs, alpha=2 * (1 - confidence))
         return float(ci[0, 0] if side == "lower" else ci[0, 1])
 
     def bound_by_hand(self, xs: np.ndarray, side: str, confidence: float) -> np.ndarray:
         """A second route: numpy least squares, (X'X)^-1 s^2 and scipy's t quantile."""
         beta, rss, _, _ = np.linalg.lstsq(self.X, self.y, rcond=None)
         df = self.X.shape[0] - self.X.shape[1]
-        cov = np.linalg.inv(self.X.T @ self.X) * (float(rss[0]) / df)
+        s2 = float(rss[0]) / df
+        cov = np.linalg.inv(self.X.T @ self.X) * s2
         t = scipy.stats.t.ppf(confidence, df)
         E = self.e0[None, :] + np.asarray(xs)[:, None] * self.e1[None, :]
         mean = E @ beta
-        se = np.sqrt(np.einsum("ij,jk,ik->i", E, cov, E))
+        se = np.sqrt(np.einsum("ij,jk,ik->i", E, cov, E) + (s2 if self.obs else 0.0))
         return mean - t * se if side == "lower" else mean + t * se
 
 
@@ -279,6 +314,8 @@ def crossing(line: Line, side: str, limit: float, confidence: float):
     e0, e1 = line.e0, line.e1
     m0, m1 = float(e0 @ beta), float(e1 @ beta)
     v0, v1, v2 = float(e0 @ cov @ e0), float(e0 @ cov @ e1), float(e1 @ cov @ e1)
+    if line.obs:
+        v0 += float(res.scale)  # a single future result adds its own variance s^2
     sign = 1.0 if side == "lower" else -1.0     # distance to the safe side of the limit
 
     def f(xv: float) -> float:
@@ -403,16 +440,26 @@ def limits_expected(plan: dict, plan_path: Path, source: str) -> dict:
         lines.append(Line("pooled", one, np.array([1.0, 0.0]), np.array([0.0, 1.0]), X_one,
                           y, np.ones(n, dtype=bool), x))
 
-    confidence = lim.get("confidence", DEFAULT_CONFIDENCE)
     sides = [s for s in ("lower", "upper") if s in lim]
     assert sides, "a [limits] table needs lower or upper"
+    # Two-sided criteria: with both limits each side uses the one-sided level
+    # (1 + confidence)/2 (ICH Q1E 2003, from memory).
+    confidence = lim.get("confidence", DEFAULT_CONFIDENCE)
+    two_sided = len(sides) == 2
+    if two_sided:
+        confidence = (1 + confidence) / 2
+    bound = lim.get("bound", "mean")
+    assert bound in ("mean", "prediction"), bound
+    for line in lines:
+        line.obs = bound == "prediction"
     entries = []
     for side in sides:
         for line in lines:
             c, reason = crossing(line, side, lim[side], confidence)
             entries.append({
                 "level": line.level, "limit": lim[side], "side": side,
-                "confidence": confidence, "crossing": c, "reason": reason,
+                "confidence": confidence, "bound": bound, "two_sided": two_sided,
+                "crossing": c, "reason": reason,
                 "observed_min": line.observed_min, "observed_max": line.observed_max,
                 "extrapolated": c is not None and c > line.observed_max,
                 "model": model,
@@ -443,9 +490,19 @@ def limits_expected(plan: dict, plan_path: Path, source: str) -> dict:
             else:
                 earliest[side] = None
         out["earliest"] = earliest
-    # Private to check_property: the slopes of the lines (not written).
+    # Private to check_property: the slopes and the lines (not written).
     out["_slopes"] = {ln.level: ln.slope for ln in lines}
+    out["_lines"] = {ln.level: ln for ln in lines}
     return out
+
+
+def mean_line(result: dict, level: str) -> Line:
+    """The same line with the mean's confidence bound (obs=False)."""
+    ln = result["_lines"][level]
+    copy = Line.__new__(Line)
+    copy.__dict__.update(ln.__dict__)
+    copy.obs = False
+    return copy
 
 
 def entry(result: dict, level: str, side: str) -> dict:
@@ -504,11 +561,12 @@ def check_property(name: str, result: dict, plan: dict, plan_path: Path) -> None
     elif name == "limits_far":
         assert model == "pooled"
         (e,) = limits
-        assert e["extrapolated"] and e["confidence"] == 0.99
+        assert e["extrapolated"] and e["confidence"] == 0.99 and e["bound"] == "mean"
         assert e["crossing"] > 2.5 * e["observed_max"], e["crossing"]
     elif name == "limits_two_sided":
         assert pooling is None and model == "separate" and "pooling" not in result
         assert [e["side"] for e in limits] == ["lower"] * 4 + ["upper"] * 4
+        assert all(e["two_sided"] and e["confidence"] == 0.975 for e in limits)
         # L-804 starts below the lower limit: already past it at its first observation.
         assert entry(result, "L-804", "lower")["reason"] == "beyond-at-start"
         assert entry(result, "L-804", "lower")["observed_max"] == 18.0
@@ -518,6 +576,24 @@ def check_property(name: str, result: dict, plan: dict, plan_path: Path) -> None
         assert result["earliest"]["lower"]["level"] == "L-804"  # past the limit from the start
         assert result["earliest"]["upper"]["level"] == "L-802"
         assert result["data"]["rows_dropped"] == {"missing_response": 1}
+    elif name == "limits_prediction":
+        assert all(e["bound"] == "prediction" and not e["two_sided"] for e in limits)
+        assert all(e["confidence"] == 0.95 and e["crossing"] is not None for e in limits)
+        # The prediction bound is wider than the mean's, so it crosses earlier.
+        for e in limits:
+            mean = crossing(mean_line(result, e["level"]), "lower", 95.0, 0.95)[0]
+            assert e["crossing"] < mean, (e["crossing"], mean)
+    elif name == "limits_prediction_two_sided":
+        assert model == "pooled"
+        assert all(e["two_sided"] and e["confidence"] == 0.975 for e in limits)
+        assert entry(result, "pooled", "lower")["crossing"] is not None
+    elif name == "limits_prediction_upper":
+        assert {e["side"] for e in limits} == {"upper"}
+        assert all(e["bound"] == "prediction" for e in limits)
+        assert all(e["crossing"] is not None for e in limits)
+        for e in limits:
+            mean = crossing(mean_line(result, e["level"]), "upper", 0.5, 0.95)[0]
+            assert e["crossing"] < mean, (e["crossing"], mean)
     else:
         raise AssertionError(f"no property check for {name}")
 
@@ -540,6 +616,7 @@ def main() -> None:
         result = limits_expected(parsed, path, source)
         check_property(name, result, parsed, path)
         slopes = result.pop("_slopes")
+        result.pop("_lines")
         gen.write_json(gen.EXPECTED_DIR / f"{name}.json", result)
         pooling = result.get("pooling")
         head = (f"slopes p={pooling['slopes_p']:.4g} intercepts p={pooling['intercepts_p']:.4g}"

@@ -7,8 +7,35 @@ use super::*;
 // Limits: the lines the crossings are read from, their one-sided bounds, the limits.
 
 /// The mean and the one-sided bound's half-width at x for one limit entry, from
-/// the model the crossing used (same formulas as `separate_at` and `common_at`).
+/// the model the crossing used; with `prediction`, the half-width of the bound for a
+/// single future result, which adds one result's variance s² to the mean's (Draper &
+/// Smith 1998).
 pub(super) fn limit_line_at(
+    r: &Results,
+    level: &str,
+    model: &str,
+    t: f64,
+    x: f64,
+    prediction: bool,
+) -> Option<(f64, Option<f64>)> {
+    let (fit, half) = limit_mean_at(r, level, model, t, x)?;
+    if !prediction {
+        return Some((fit, half));
+    }
+    let s = match model {
+        "pooled" => r.one_line.residual_sd,
+        "common-slope" => r.common_slope.residual_sd,
+        _ => r.groups.iter().find(|g| g.level == level)?.residual_sd,
+    };
+    Some((
+        fit,
+        half.zip(s).map(|(h, s)| (h * h + t * t * s * s).sqrt()),
+    ))
+}
+
+/// The mean and the half-width of its one-sided confidence bound (same formulas as
+/// `separate_at` and `common_at`).
+fn limit_mean_at(
     r: &Results,
     level: &str,
     model: &str,
@@ -87,7 +114,8 @@ pub(super) fn limits(ctx: &Context) -> Result<Figure, String> {
                 .unwrap_or(k)
         };
         let curve = curve(lo, hi, |x| {
-            limit_line_at(r, &c.level, model, t, x).unwrap_or((f64::NAN, None))
+            limit_line_at(r, &c.level, model, t, x, c.bound == "prediction")
+                .unwrap_or((f64::NAN, None))
         });
         for &(_, y, h) in &curve {
             ys.add(y);
@@ -193,11 +221,16 @@ pub(super) fn limits(ctx: &Context) -> Result<Figure, String> {
         })
         .collect();
     let caption = format!(
-        "Each line the crossings are read from ({}), its one-sided {level}% confidence bound of the mean, and the limits (dashed). Crossings: {}. {}",
+        "Each line the crossings are read from ({}), its one-sided {level}% {}, and the limits (dashed). Crossings: {}. {}",
         match model {
             "pooled" => "the pooled line",
             "common-slope" => "parallel lines",
             _ => "each group's own line",
+        },
+        if first.bound == "prediction" {
+            "prediction bound for a single future result"
+        } else {
+            "confidence bound of the mean"
         },
         if crossings.is_empty() {
             "none".to_string()

@@ -311,6 +311,37 @@ mod tests {
         (a - b).abs() <= 1e-9 * b.abs().max(1.0)
     }
 
+    #[test]
+    fn the_prediction_band_drawn_meets_the_limit_at_each_crossing() {
+        // The invented reference data of tests/reference (generate_limits.py, case
+        // limits_prediction): separate lines, prediction bounds, lower limit 95.
+        let csv = include_str!("../../../tests/reference/data/limits_prediction.csv");
+        let plan = "title = \"p\"\n[data]\npath = \"d.csv\"\n[model]\nresponse = \"assay_pct\"\ncovariate = \"months\"\ngroup = \"lot\"\n[limits]\nlower = 95.0\nbound = \"prediction\"\n[tests]\nprocedure = \"lot-pooling\"\n";
+        let plan = crate::plan::load("p.toml", plan).unwrap();
+        let data = crate::data::load(&plan, csv.as_bytes()).unwrap();
+        let r = crate::analysis::run(&plan, &data, Provenance::default()).unwrap();
+        assert_eq!(r.limits.len(), 3);
+        for c in &r.limits {
+            assert_eq!(
+                (c.model.as_str(), c.bound.as_str()),
+                ("separate", "prediction")
+            );
+            let g = r.groups.iter().find(|g| g.level == c.level).unwrap();
+            let t = crate::stats::dist::t_quantile(c.confidence, g.n as f64 - 2.0);
+            let x = c.crossing.unwrap();
+            let (fit, half) = limits::limit_line_at(&r, &c.level, "separate", t, x, true).unwrap();
+            assert!(
+                close(fit - half.unwrap(), 95.0),
+                "{}: {}",
+                c.level,
+                fit - half.unwrap()
+            );
+            // The mean's band is narrower there, so it is still above the limit.
+            let (fit, half) = limits::limit_line_at(&r, &c.level, "separate", t, x, false).unwrap();
+            assert!(fit - half.unwrap() > 95.0 + 1e-6);
+        }
+    }
+
     // Reference values from statsmodels 0.15.0 (numpy 2.4.6, scipy 1.17.1), design
     // matrices built by hand with numpy; the script, run with /tmp/refvenv/bin/python:
     //

@@ -48,11 +48,18 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
     let conf = r.limits.first().map_or(String::new(), |l| {
         format!("{}%", trimmed(100.0 * l.confidence, 4))
     });
+    let prediction = r.limits.first().is_some_and(|l| l.bound == "prediction");
+    let two_sided = r.limits.first().is_some_and(|l| l.two_sided);
     b.para(vec![
         t("Each crossing is the "),
         v(&c.x),
         t(format!(
-            " value where the one-sided {conf} confidence bound of the mean "
+            " value where the one-sided {conf} {} ",
+            if prediction {
+                "prediction bound for a single future"
+            } else {
+                "confidence bound of the mean"
+            }
         )),
         v(&c.y),
         t(format!(
@@ -65,6 +72,13 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
             }
         )),
     ]);
+    if two_sided && let Some(crate::report::doc::Block::Paragraph(runs)) = b.blocks.last_mut() {
+        runs.extend([
+            t(" With both limits, each side uses the one-sided level (1 + confidence)/2, so the two sides together hold at the plan's confidence ("),
+            Inline::Cite(Work::IchQ1e2003),
+            t(")."),
+        ]);
+    }
     b.table(
         vec![
             cell("line"),
@@ -118,6 +132,50 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
                 t(format!(" = {}.", sig(e.crossing, 4))),
             ]);
         }
+    }
+    if let Some(s) = &r.limits_supported {
+        let mut runs = vec![t("Supported period: ")];
+        match s.supported {
+            Some(p) => runs.extend([
+                v(&c.x),
+                t(format!(
+                    " = {}, rounded down to a step of {}",
+                    trimmed(p, 4),
+                    trimmed(s.round_to, 4)
+                )),
+            ]),
+            None => runs.push(t(match s.reason.as_deref() {
+                Some("beyond-at-start") => {
+                    "none, a line is past the limit from its first observation"
+                }
+                Some("never-within") => {
+                    "none, no bound meets a limit and the plan gives no extrapolation rule"
+                }
+                _ => "none, no line was chosen",
+            })),
+        }
+        runs.push(t(". Raw crossing: "));
+        match (s.raw_crossing, &s.limiting_level, &s.limiting_side) {
+            (Some(x), Some(level), Some(side)) => runs.extend([
+                t(format!("{} (", sig(x, 4))),
+                v(level),
+                t(format!(", {side} limit)")),
+            ]),
+            (Some(x), _, _) => runs.push(t(sig(x, 4))),
+            _ => runs.push(t("none")),
+        }
+        runs.extend([t("; the data cover "), v(&c.x)]);
+        runs.push(t(format!(
+            " up to {}; cap: {}, because {}.",
+            sig(s.covered, 4),
+            match s.cap {
+                Some(cap) if s.capped => format!("{}, which sets the period", sig(cap, 4)),
+                Some(cap) => sig(cap, 4),
+                None => "none".into(),
+            },
+            s.cap_reason
+        )));
+        b.para(runs);
     }
     b.para(vec![
         t("These estimates support, and do not replace, the evaluation that the applicable guidance (for stability data, "),
