@@ -186,7 +186,14 @@ pub(super) struct RawTests {
 
 #[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
-#[schemars(extend("anyOf" = [{"required": ["lower"]}, {"required": ["upper"]}], "examples" = [{"lower": 95.0, "confidence": 0.95}]))]
+#[schemars(extend(
+    "anyOf" = [{"required": ["lower"]}, {"required": ["upper"]}],
+    "allOf" = [
+        {"not": {"required": ["storage", "extrapolation_factor"]}},
+        {"not": {"required": ["storage", "max_beyond"]}}
+    ],
+    "examples" = [{"lower": 95.0, "confidence": 0.95}]
+))]
 pub(super) struct RawLimits {
     /// The mean response must stay at or above this value (on the response's scale as
     /// measured).
