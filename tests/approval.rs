@@ -352,7 +352,7 @@ fn provenance_names_the_build_and_what_shaped_the_pdf() {
     let fake = dir.join("fake-typst");
     std::fs::write(
         &fake,
-        "#!/bin/sh\nif [ \"$1\" = \"--version\" ]; then echo 'typst 9.9.9 (test stand-in)'; exit 0; fi\necho '%PDF-stand-in' > report.pdf\n",
+        "#!/bin/sh\nif [ \"$1\" = \"--version\" ]; then echo 'typst 9.9.9 (test stand-in)'; exit 0; fi\nprintf '%%PDF-stand-in\\n%%%%EOF\\n' > report.pdf\n",
     )
     .unwrap();
     #[cfg(unix)]

@@ -11,14 +11,16 @@ pub const TYPST_VERSION: &str = "0.15.1";
 pub const TYPST_ENV: &str = "SLOPEWISE_TYPST";
 
 /// The first line of `typst --version` (e.g. "typst 0.15.1 (…)"), for provenance;
-/// `None` when no typst runs (the PDF step then says why).
+/// `None` when no typst runs (the PDF step then says why). Under the same time
+/// limit as the compile, so a typst that hangs cannot hang the run here either.
 pub(super) fn version() -> Option<String> {
     let typst = std::env::var_os(TYPST_ENV).unwrap_or_else(|| "typst".into());
-    let out = std::process::Command::new(typst)
-        .arg("--version")
-        .output()
-        .ok()
-        .filter(|o| o.status.success())?;
+    let out = run_with_limit(
+        std::process::Command::new(typst).arg("--version"),
+        std::time::Duration::from_secs(time_limit()),
+    )
+    .ok()
+    .filter(|o| o.status.success())?;
     let text = String::from_utf8_lossy(&out.stdout);
     let line = text.lines().next()?.trim();
     (!line.is_empty()).then(|| line.to_string())
@@ -70,10 +72,7 @@ pub(super) fn compile_pdf(staging: &Path) -> Result<(), Diagnostic> {
         .ok()
         .filter(|v| v.parse::<u64>().is_ok())
         .unwrap_or_else(|| "0".into());
-    let limit = std::env::var(TYPST_TIMEOUT_ENV)
-        .ok()
-        .and_then(|v| v.parse::<u64>().ok())
-        .unwrap_or(DEFAULT_TIMEOUT_SECS);
+    let limit = time_limit();
     let output = run_with_limit(
         std::process::Command::new(&typst)
             .current_dir(staging)
@@ -123,9 +122,17 @@ pub(super) fn compile_pdf(staging: &Path) -> Result<(), Diagnostic> {
     }
 }
 
-/// The child's status and stderr, or `TimedOut` after killing it at `limit`. Its
-/// output goes to unnamed temporary files, so a chatty child cannot fill a pipe
-/// and stall while we wait.
+/// typst's time limit in seconds: `SLOPEWISE_TYPST_TIMEOUT`, else the default.
+fn time_limit() -> u64 {
+    std::env::var(TYPST_TIMEOUT_ENV)
+        .ok()
+        .and_then(|v| v.parse::<u64>().ok())
+        .unwrap_or(DEFAULT_TIMEOUT_SECS)
+}
+
+/// The child's status, stdout and stderr, or `TimedOut` after killing it at
+/// `limit`. Its output goes to unnamed temporary files, so a chatty child cannot
+/// fill a pipe and stall while we wait.
 fn run_with_limit(
     cmd: &mut std::process::Command,
     limit: std::time::Duration,
@@ -133,9 +140,10 @@ fn run_with_limit(
     use std::io::{Read, Seek};
     use wait_timeout::ChildExt;
     let mut err = tempfile::tempfile()?;
+    let mut out = tempfile::tempfile()?;
     let mut child = cmd
         .stdin(std::process::Stdio::null())
-        .stdout(std::process::Stdio::null())
+        .stdout(out.try_clone()?)
         .stderr(err.try_clone()?)
         .spawn()?;
     let Some(status) = child.wait_timeout(limit)? else {
@@ -146,12 +154,14 @@ fn run_with_limit(
             "typst timed out",
         ));
     };
-    let mut stderr = Vec::new();
+    let (mut stdout, mut stderr) = (Vec::new(), Vec::new());
+    out.rewind()?;
+    out.read_to_end(&mut stdout)?;
     err.rewind()?;
     err.read_to_end(&mut stderr)?;
     Ok(std::process::Output {
         status,
-        stdout: Vec::new(),
+        stdout,
         stderr,
     })
 }
