@@ -620,3 +620,24 @@ fn a_200000_column_header_is_read_in_one_pass() {
         &stderr(&o)[..stderr(&o).len().min(2000)]
     );
 }
+
+// ---- messages -------------------------------------------------------------------
+
+/// Measured on c464eb8: a one-field row was reported as having "1 fields".
+#[test]
+fn a_one_field_row_is_reported_in_the_singular() {
+    let dir = setup("one-field");
+    fs::write(
+        dir.join("data.csv"),
+        "plot,length_cm,mass_g\nnorth,4.0,1.12\nnorth\nnorth,7.0,2.05\n",
+    )
+    .unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    let err = stderr(&o);
+    assert!(
+        err.contains("data row 2 (file line 3) has 1 field, but the header has 3"),
+        "{err}"
+    );
+    assert!(!err.contains("1 fields"), "{err}");
+}

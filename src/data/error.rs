@@ -89,7 +89,10 @@ pub enum DataError {
         available: Vec<String>,
     },
     /// A record with a different number of fields than the header.
-    #[error("data row {row} (file line {line}) has {found} fields, but the header has {expected}")]
+    #[error(
+        "data row {row} (file line {line}) has {found} {}, but the header has {expected}",
+        if *found == 1 { "field" } else { "fields" }
+    )]
     Ragged {
         /// Data row.
         row: u64,
