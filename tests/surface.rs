@@ -641,3 +641,22 @@ fn a_one_field_row_is_reported_in_the_singular() {
     );
     assert!(!err.contains("1 fields"), "{err}");
 }
+
+/// Measured on c464eb8: `1e-400` was read as 0 without a word, while `1e400` was
+/// refused; both change the data, so both are refused with row and column.
+#[test]
+fn an_underflowing_cell_is_refused_like_an_overflowing_one() {
+    let dir = setup("underflow");
+    fs::write(
+        dir.join("data.csv"),
+        "plot,length_cm,mass_g\nnorth,4.0,1.12\nnorth,5.5,1e-400\nnorth,7.0,2.05\n",
+    )
+    .unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    let err = stderr(&o);
+    assert!(err.contains("1e-400"), "{err}");
+    assert!(err.contains("row 2"), "{err}");
+    assert!(err.contains("mass_g"), "{err}");
+    assert!(!dir.join("out").exists(), "nothing written on a data error");
+}
