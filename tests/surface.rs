@@ -660,3 +660,23 @@ fn an_underflowing_cell_is_refused_like_an_overflowing_one() {
     assert!(err.contains("mass_g"), "{err}");
     assert!(!dir.join("out").exists(), "nothing written on a data error");
 }
+
+/// Measured on c464eb8: a very large integer where text belongs was reported as
+/// "found the number 99999999999999999999` as i128", serde's internals.
+#[test]
+fn serde_integer_widths_never_reach_a_plan_error() {
+    let dir = setup("i128");
+    let plan = unindent(common::BASE_PLAN)
+        .replace("response = \"mass_g\"", "response = 99999999999999999999");
+    fs::write(dir.join("plan.toml"), plan).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    let err = stderr(&o);
+    assert!(
+        err.contains(
+            "model.response must be text in quotes, found the number 99999999999999999999\n"
+        ),
+        "{err}"
+    );
+    assert!(!err.contains("i128"), "{err}");
+}
