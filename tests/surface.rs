@@ -620,3 +620,63 @@ fn a_200000_column_header_is_read_in_one_pass() {
         &stderr(&o)[..stderr(&o).len().min(2000)]
     );
 }
+
+// ---- messages -------------------------------------------------------------------
+
+/// Measured on c464eb8: a one-field row was reported as having "1 fields".
+#[test]
+fn a_one_field_row_is_reported_in_the_singular() {
+    let dir = setup("one-field");
+    fs::write(
+        dir.join("data.csv"),
+        "plot,length_cm,mass_g\nnorth,4.0,1.12\nnorth\nnorth,7.0,2.05\n",
+    )
+    .unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    let err = stderr(&o);
+    assert!(
+        err.contains("data row 2 (file line 3) has 1 field, but the header has 3"),
+        "{err}"
+    );
+    assert!(!err.contains("1 fields"), "{err}");
+}
+
+/// Measured on c464eb8: `1e-400` was read as 0 without a word, while `1e400` was
+/// refused; both change the data, so both are refused with row and column.
+#[test]
+fn an_underflowing_cell_is_refused_like_an_overflowing_one() {
+    let dir = setup("underflow");
+    fs::write(
+        dir.join("data.csv"),
+        "plot,length_cm,mass_g\nnorth,4.0,1.12\nnorth,5.5,1e-400\nnorth,7.0,2.05\n",
+    )
+    .unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    let err = stderr(&o);
+    assert!(err.contains("1e-400"), "{err}");
+    assert!(err.contains("row 2"), "{err}");
+    assert!(err.contains("mass_g"), "{err}");
+    assert!(!dir.join("out").exists(), "nothing written on a data error");
+}
+
+/// Measured on c464eb8: a very large integer where text belongs was reported as
+/// "found the number 99999999999999999999` as i128", serde's internals.
+#[test]
+fn serde_integer_widths_never_reach_a_plan_error() {
+    let dir = setup("i128");
+    let plan = unindent(common::BASE_PLAN)
+        .replace("response = \"mass_g\"", "response = 99999999999999999999");
+    fs::write(dir.join("plan.toml"), plan).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    let err = stderr(&o);
+    assert!(
+        err.contains(
+            "model.response must be text in quotes, found the number 99999999999999999999\n"
+        ),
+        "{err}"
+    );
+    assert!(!err.contains("i128"), "{err}");
+}

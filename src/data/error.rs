@@ -89,7 +89,10 @@ pub enum DataError {
         available: Vec<String>,
     },
     /// A record with a different number of fields than the header.
-    #[error("data row {row} (file line {line}) has {found} fields, but the header has {expected}")]
+    #[error(
+        "data row {row} (file line {line}) has {found} {}, but the header has {expected}",
+        if *found == 1 { "field" } else { "fields" }
+    )]
     Ragged {
         /// Data row.
         row: u64,
@@ -125,6 +128,15 @@ pub enum DataError {
     /// A numeric cell reads as infinite or NaN.
     #[error("{at} holds `{text}`, which is not a finite number")]
     NotFinite {
+        /// Where.
+        at: CellAt,
+        /// The cell text.
+        text: String,
+    },
+    /// A numeric cell so small in magnitude that it reads as zero, which would change
+    /// the data silently (as `1e400` reading as infinity would).
+    #[error("{at} holds `{text}`, which is too small to represent and would read as 0")]
+    Underflow {
         /// Where.
         at: CellAt,
         /// The cell text.
@@ -246,6 +258,7 @@ impl DataError {
             DataError::NotUtf8 { at: a } => DataError::NotUtf8 { at: at(a) },
             DataError::NotANumber { at: a, text } => DataError::NotANumber { at: at(a), text },
             DataError::NotFinite { at: a, text } => DataError::NotFinite { at: at(a), text },
+            DataError::Underflow { at: a, text } => DataError::Underflow { at: at(a), text },
             DataError::UnlistedLevel {
                 row,
                 line,
@@ -271,7 +284,8 @@ impl DataError {
             | DataError::UnlistedLevel { line, .. } => *line = new,
             DataError::NotUtf8 { at }
             | DataError::NotANumber { at, .. }
-            | DataError::NotFinite { at, .. } => at.line = new,
+            | DataError::NotFinite { at, .. }
+            | DataError::Underflow { at, .. } => at.line = new,
             _ => {}
         }
         self
@@ -335,6 +349,9 @@ impl DataError {
                         "fix the cell, or if it marks a missing value add that text to data.missing (for example missing = [\"\", \"NA\", \"-\"])",
                     )
                 }
+            }
+            DataError::Underflow { .. } => {
+                d.help("write the value in a unit that keeps it above about 1e-300, or as 0 if it is zero")
             }
             DataError::NotFinite { .. } => {
                 d.help("replace it with a finite value, or with a missing-value token from data.missing")

@@ -592,19 +592,29 @@ const LINEAR_LOOKUP: usize = 16;
 /// number).
 fn number(text: &[u8], at: impl Fn() -> CellAt) -> Result<f64, DataError> {
     match fast_float2::parse::<f64, _>(text) {
-        Ok(v) if v.is_finite() => Ok(v),
+        Ok(v) if v.is_finite() && (v != 0.0 || !nonzero_mantissa(text)) => Ok(v),
         parsed => {
             let Ok(s) = std::str::from_utf8(text) else {
                 return Err(DataError::NotUtf8 { at: at() });
             };
             let text = s.to_string();
-            Err(if parsed.is_ok() {
+            Err(if parsed.is_ok_and(|v| v == 0.0) {
+                DataError::Underflow { at: at(), text }
+            } else if parsed.is_ok() {
                 DataError::NotFinite { at: at(), text }
             } else {
                 DataError::NotANumber { at: at(), text }
             })
         }
     }
+}
+
+/// Whether the digits before any exponent include a non-zero one, so that a parse to
+/// zero means the value underflowed (`1e-400`) rather than being written as zero.
+fn nonzero_mantissa(text: &[u8]) -> bool {
+    text.iter()
+        .take_while(|b| !matches!(b, b'e' | b'E'))
+        .any(|b| (b'1'..=b'9').contains(b))
 }
 
 fn csv_error(e: csv::Error, row: u64) -> DataError {

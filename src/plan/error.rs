@@ -164,6 +164,8 @@ fn plain_found(found: &str) -> String {
         ("boolean ", ""),
     ] {
         if let Some(rest) = f.strip_prefix(prefix) {
+            // serde writes very large integers as "`N` as i128"; the width is its own.
+            let rest = rest.split(" as ").next().unwrap_or(rest);
             return format!("{words}{}", rest.trim_matches('`'));
         }
     }
