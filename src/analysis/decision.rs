@@ -1,17 +1,23 @@
-//! The decision the gate implies, and the warnings that keep a reader from a
-//! misleading comparison.
+//! The decision record: what the gate decided, how the group effect, the pooling
+//! steps and the limits came out, which sections the report shows in which order,
+//! and every failed check. The report's summary, its section choice and `diff` are
+//! written from this record alone, so none of them decides anything on its own.
 //!
 //! Slopes are taken as homogeneous when the equal-slopes p-value is at least
 //! `slopes_alpha`. Then the groups are compared on a common slope (adjusted means)
-//! and the report leads with that; otherwise the lines cross somewhere, a single
-//! adjusted-mean difference depends on where it is taken, and the report leads with
-//! the slopes themselves.
+//! and the report leads with that; a p-value at or above the level is not evidence of
+//! equal slopes, so the record keeps the range of slope differences the pairwise
+//! intervals leave open. Otherwise the lines cross somewhere, a single adjusted-mean
+//! difference depends on where it is taken, and the report leads with the slopes
+//! themselves; the common-slope tables move to a what-if section or are left out.
 
-use super::gate::spread_warning;
-use crate::number::sig;
-use crate::number::{p_equation, trimmed};
-use crate::plan::Plan;
-use crate::results::{Decision, DecisionModels, Results};
+use super::findings::{self, Found};
+use super::interval;
+use crate::number::{p_equation, sig, trimmed};
+use crate::plan::{ForcedEqual, Plan, Procedure};
+use crate::results::{
+    Decision, DecisionModels, Finding, GateReading, LimitCrossing, LimitsReading, Results,
+};
 
 /// What the comparison leads with when slopes are equal.
 pub const LEAD_COMMON: &str = "common-slope";
@@ -25,12 +31,16 @@ pub(super) fn placeholder() -> Decision {
         lead: String::new(),
         reason: String::new(),
         models: DecisionModels::default(),
+        gate: GateReading::default(),
+        equivalence: None,
+        group_effect: String::new(),
+        procedure: String::new(),
+        limits: None,
+        common_slope_tables: String::new(),
+        sections: Vec::new(),
+        findings: Vec::new(),
     }
 }
-
-/// Small groups make the gate weak; 10 rows per group is a rule of thumb for a
-/// usable slope test (common practice, no source).
-const LOW_POWER_N: u64 = 10;
 
 /// Fills in the decision and the warnings. `limits_model` is the model the limits'
 /// crossings were read from, when the plan has limits.
@@ -40,85 +50,289 @@ pub(super) fn conclude(
     mut warnings: Vec<String>,
     limits_model: Option<&str>,
 ) -> Results {
-    let gate = &r.equal_slopes;
-    let p_text = match gate.status.as_str() {
-        "exact-fit" => {
-            "an infinite F (every line passes exactly through its rows: exact fit), p = 0"
-                .to_string()
-        }
-        _ => gate.p_value.map_or("no p-value".to_string(), p_equation),
-    };
-    let homogeneous = gate.homogeneous;
-    let reason = if gate.status == "not-computable" {
-        "The equal-slopes test cannot be computed (no residual variation and no slope difference, 0/0); the slopes are identical to rounding, so the groups are compared on a common slope.".to_string()
-    } else if homogeneous {
-        format!(
-            "The equal-slopes test gives {p_text}, at or above slopes_alpha = {}, so the slopes are taken as equal and the groups are compared on a common slope.",
-            trimmed(gate.alpha, 4)
-        )
-    } else {
-        format!(
-            "The equal-slopes test gives {p_text}, below slopes_alpha = {}, so the slopes are taken to differ and the groups are compared by their slopes.",
-            trimmed(gate.alpha, 4)
-        )
-    };
-
-    let response = plan.model.response_transform.label(&plan.model.response);
-    let covariate = plan.model.covariate_transform.label(&plan.model.covariate);
-    if homogeneous {
-        let smallest = r.groups.iter().map(|g| g.n).min().unwrap_or(0);
-        if smallest < LOW_POWER_N {
-            warnings.push(format!(
-                "The smallest group has only {smallest} rows, so the equal-slopes test has little power: a p-value above slopes_alpha is not evidence that the slopes are equal."
-            ));
-        }
-    } else {
-        warnings.push(format!(
-            "Slopes differ, so the adjusted means compare the groups at {covariate} = {} only; at other values of {covariate} the differences in {response} change size and may change sign. Read the slope comparisons first.",
-            sig(r.adjust_at, 4)
-        ));
-    }
-    check_warnings(plan, &r, homogeneous, &covariate, &mut warnings);
-    let levels: Vec<&str> = r.groups.iter().map(|g| g.level.as_str()).collect();
-    if let Some(w) = spread_from_results(&r, &levels) {
-        warnings.push(w);
-    }
-    let outside: Vec<String> = r
-        .adjusted_means
-        .iter()
-        .filter(|m| !m.within_range)
-        .map(|m| format!("`{}`", m.level))
-        .collect();
-    if !outside.is_empty() {
-        warnings.push(format!(
-            "Adjusted means for {} are extrapolations: {covariate} = {} lies outside the covariate values observed in {}.",
-            outside.join(", "),
-            sig(r.adjust_at, 4),
-            if outside.len() == 1 { "that group" } else { "those groups" }
-        ));
-    }
-
+    let homogeneous = r.equal_slopes.homogeneous;
+    let gate = gate_reading(&r, plan.tests.alpha);
+    let reason = reason(&r, &gate, plan.tests.alpha);
     let lead = if homogeneous {
         LEAD_COMMON
     } else {
         LEAD_SEPARATE
     };
     let models = models(lead, &r.checks.influence.model, limits_model);
+
+    let mut found: Vec<Found> = Vec::new();
+    if let Some(pool) = r.pooling.as_ref().filter(|p| p.stopped_at.is_some()) {
+        found.push(Found {
+            finding: Finding {
+                check: "pooling-stopped".into(),
+                level: None,
+                p_value: None,
+                statement: format!(
+                    "lot pooling stopped at its {} step (a test that cannot be computed, 0/0)",
+                    pool.stopped_at.as_deref().unwrap_or("first")
+                ),
+                consequence: "no line was chosen for the limits, so no crossing is estimated"
+                    .into(),
+            },
+            // The statement itself is already first among the warnings.
+            warning: String::new(),
+        });
+    }
     if !models.agree
         && let (Some(pooling), Some(limits)) = (&r.pooling, limits_model)
         && limits != "not-decided"
     {
-        // Said first: every later number is read with its model in mind.
-        warnings.insert(0, levels_disagree(&r, pooling.alpha, homogeneous, limits));
+        found.push(Found {
+            finding: Finding {
+                check: "levels-disagree".into(),
+                level: None,
+                p_value: r.equal_slopes.p_value,
+                statement: "the plan's two levels (slopes_alpha and pooling_alpha) lead to different models".into(),
+                consequence: "the comparisons and the limits rest on different lines; read each section with its model in mind".into(),
+            },
+            warning: levels_disagree(&r, pooling.alpha, homogeneous, limits),
+        });
     }
+    found.extend(findings::checks(plan, &r, homogeneous));
+    let limits = limits_model.map(|m| limits_reading(m, &r.limits, &r));
+    if let Some(l) = &limits {
+        found.extend(limit_findings(l, &r.limits));
+    }
+
+    // Warnings keep their old order: a stop of the pooling steps first, then a
+    // disagreement of the levels, then what the steps above pushed, then the checks.
+    let mut ordered = Vec::new();
+    let (first, rest): (Vec<&Found>, Vec<&Found>) = found
+        .iter()
+        .partition(|f| f.finding.check == "levels-disagree");
+    let stop = plan
+        .limits
+        .is_some()
+        .then(|| r.pooling.as_ref().and_then(|p| p.stopped_at.as_ref()))
+        .flatten()
+        .is_some();
+    if stop && !warnings.is_empty() {
+        ordered.push(warnings.remove(0));
+    }
+    ordered.extend(first.iter().map(|f| f.warning.clone()));
+    ordered.append(&mut warnings);
+    ordered.extend(
+        rest.iter()
+            .filter(|f| !f.warning.is_empty() && !f.finding.check.starts_with("limit-"))
+            .map(|f| f.warning.clone()),
+    );
+
+    let common_slope_tables = match (homogeneous, plan.report.forced_equal) {
+        (true, _) => "main",
+        (false, ForcedEqual::Section) => "forced-equal",
+        (false, ForcedEqual::Omit) => "omitted",
+    };
     r.decision = Decision {
         homogeneous,
         lead: lead.to_string(),
         reason,
         models,
+        group_effect: group_effect_reading(&r),
+        gate,
+        equivalence: None,
+        procedure: match plan.tests.procedure {
+            Procedure::EqualSlopesGate => "equal-slopes-gate",
+            Procedure::LotPooling => "lot-pooling",
+        }
+        .into(),
+        sections: sections(homogeneous, common_slope_tables, limits.is_some()),
+        limits,
+        common_slope_tables: common_slope_tables.into(),
+        findings: found.into_iter().map(|f| f.finding).collect(),
     };
-    r.warnings = warnings;
+    r.warnings = ordered;
     r
+}
+
+/// The gate's outcome and the slope differences its pairwise intervals leave open.
+fn gate_reading(r: &Results, alpha: f64) -> GateReading {
+    let es = &r.equal_slopes;
+    let outcome = match es.status.as_str() {
+        "exact-fit" => "exact-fit",
+        "not-computable" => "identical",
+        _ if es.homogeneous => "not-shown-to-differ",
+        _ => "differ",
+    };
+    let mut within: Option<[f64; 2]> = None;
+    let mut widest: Option<(f64, [String; 2])> = None;
+    for p in &r.pairwise_slopes {
+        let Some([lo, hi]) = interval(p.difference, p.se, p.df, alpha) else {
+            continue;
+        };
+        within = Some(match within {
+            None => [lo, hi],
+            Some([a, b]) => [a.min(lo), b.max(hi)],
+        });
+        let reach = lo.abs().max(hi.abs());
+        if widest.as_ref().is_none_or(|(w, _)| reach > *w) {
+            widest = Some((reach, [p.a.clone(), p.b.clone()]));
+        }
+    }
+    GateReading {
+        outcome: outcome.into(),
+        slope_differences_within: within,
+        widest_pair: widest.map(|(_, pair)| pair),
+    }
+}
+
+/// Why the report compares the groups as it does, in one paragraph.
+fn reason(r: &Results, gate: &GateReading, alpha: f64) -> String {
+    let es = &r.equal_slopes;
+    let level = trimmed(es.alpha, 4);
+    let p_text = es.p_value.map_or("no p-value".to_string(), p_equation);
+    match gate.outcome.as_str() {
+        "identical" => "The equal-slopes test cannot be computed (no residual variation and no slope difference, 0/0); the slopes are identical to rounding, so the groups are compared on a common slope.".to_string(),
+        "exact-fit" => "The equal-slopes test gives an infinite F (every line passes exactly through its rows: exact fit), p = 0, so the slopes differ and the groups are compared by their slopes.".to_string(),
+        "differ" => format!(
+            "The equal-slopes test gives {p_text}, below slopes_alpha = {level}, so the slopes differ and the groups are compared by their slopes."
+        ),
+        _ => {
+            let open = match gate.slope_differences_within {
+                Some([lo, hi]) => format!(
+                    " At {}% the pairwise slope differences the data leave open run from {} to {} (unadjusted intervals); differences beyond that range are ruled out, smaller ones are not.",
+                    trimmed(100.0 * (1.0 - alpha), 4),
+                    sig(lo, 4),
+                    sig(hi, 4)
+                ),
+                None => String::new(),
+            };
+            format!(
+                "The equal-slopes test gives {p_text}, at or above slopes_alpha = {level}: the data do not show the slopes to differ. That is not evidence that they are equal.{open} The groups are compared on a common slope."
+            )
+        }
+    }
+}
+
+/// How the group effect on a common slope came out.
+fn group_effect_reading(r: &Results) -> String {
+    let ge = &r.group_effect;
+    match ge.status.as_str() {
+        "exact-fit" => "exact-fit",
+        "not-computable" => "not-computable",
+        _ if ge.p_value.is_some_and(|p| p < r.model.alpha) => "differ",
+        _ => "not-shown-to-differ",
+    }
+    .into()
+}
+
+/// The report's sections in reading order, by key.
+fn sections(homogeneous: bool, common_slope_tables: &str, limits: bool) -> Vec<String> {
+    let mut s = vec!["summary", "rows", "lines", "gate", "slope-pairs"];
+    s.push(if homogeneous {
+        "common-slope"
+    } else {
+        "regions"
+    });
+    if limits {
+        s.push("limits");
+    }
+    s.push("checks");
+    if common_slope_tables == "forced-equal" {
+        s.push("forced-equal");
+    }
+    s.extend(["figures", "warnings", "methods", "provenance"]);
+    s.into_iter().map(str::to_string).collect()
+}
+
+/// What the limits come to under `model`: the line and side that set the outcome.
+fn limits_reading(model: &str, lines: &[LimitCrossing], r: &Results) -> LimitsReading {
+    let first = lines.first();
+    let mut reading = LimitsReading {
+        model: model.to_string(),
+        outcome: "never".into(),
+        bound: first.map_or("mean".into(), |l| l.bound.clone()),
+        confidence: first.map_or(0.0, |l| l.confidence),
+        supported: r.limits_supported.as_ref().and_then(|s| s.supported),
+        ..LimitsReading::default()
+    };
+    if model == "not-decided" {
+        reading.outcome = "not-decided".into();
+        return reading;
+    }
+    let set = |reading: &mut LimitsReading, l: &LimitCrossing, at: f64, outcome: &str| {
+        reading.outcome = outcome.into();
+        reading.level = Some(l.level.clone());
+        reading.side = Some(l.side.clone());
+        reading.limit = Some(l.limit);
+        reading.crossing = Some(at);
+        reading.last_observed = Some(l.observed_max);
+        reading.beyond = Some((at - l.observed_max).max(0.0));
+    };
+    // A line already past its limit settles the question before any crossing does.
+    let already = lines
+        .iter()
+        .filter(|l| l.reason.as_deref() == Some("beyond-at-start"))
+        .min_by(|a, b| a.observed_min.total_cmp(&b.observed_min));
+    if let Some(l) = already {
+        set(&mut reading, l, l.observed_min, "already-crossed");
+        return reading;
+    }
+    let earliest = lines
+        .iter()
+        .filter_map(|l| l.crossing.map(|c| (c, l)))
+        .min_by(|a, b| a.0.total_cmp(&b.0));
+    if let Some((c, l)) = earliest {
+        let outcome = if c <= l.observed_max {
+            "crossed-within"
+        } else {
+            "crossed-beyond"
+        };
+        set(&mut reading, l, c, outcome);
+    }
+    reading
+}
+
+/// Limits already reached at the start or inside the data are findings of their own.
+fn limit_findings(reading: &LimitsReading, lines: &[LimitCrossing]) -> Vec<Found> {
+    let mut out = Vec::new();
+    for l in lines {
+        let (check, statement, consequence) = match (l.reason.as_deref(), l.crossing) {
+            (Some("beyond-at-start"), _) => (
+                "limit-already-crossed",
+                format!(
+                    "the bound of `{}` is already past the {} limit {} at its first observation ({})",
+                    l.level,
+                    l.side,
+                    sig(l.limit, 4),
+                    sig(l.observed_min, 4)
+                ),
+                "there is no crossing to estimate for that line, and no period is supported",
+            ),
+            (_, Some(c)) if c <= l.observed_max => (
+                "limit-crossed-within",
+                format!(
+                    "the bound of `{}` crosses the {} limit {} at {}, inside its observed data (last observation {})",
+                    l.level,
+                    l.side,
+                    sig(l.limit, 4),
+                    sig(c, 4),
+                    sig(l.observed_max, 4)
+                ),
+                "the limit is reached within the study, not by extrapolation",
+            ),
+            _ => continue,
+        };
+        out.push(Found {
+            finding: Finding {
+                check: check.into(),
+                level: Some(l.level.clone()),
+                p_value: None,
+                statement,
+                consequence: consequence.into(),
+            },
+            warning: String::new(),
+        });
+    }
+    // Keep the line that sets the outcome first.
+    if let Some(level) = &reading.level {
+        out.sort_by_key(|f| f.finding.level.as_ref() != Some(level));
+    }
+    out
 }
 
 /// The model of each part of the report. The gate and lot pooling agree when the
@@ -157,65 +371,4 @@ fn levels_disagree(r: &Results, pooling_alpha: f64, homogeneous: bool, limits: &
         trimmed(gate.alpha, 4),
         trimmed(pooling_alpha, 4)
     )
-}
-
-/// What the assumption checks mean for the comparison the decision chose.
-fn check_warnings(
-    plan: &Plan,
-    r: &Results,
-    homogeneous: bool,
-    covariate: &str,
-    warnings: &mut Vec<String>,
-) {
-    let alpha = plan.tests.alpha;
-    let c = &r.checks;
-    if let Some(p) = c.normality.p_value.filter(|p| *p < alpha) {
-        warnings.push(format!(
-            "The residuals depart from a normal distribution (Shapiro–Wilk {}). With many rows per group the F and t tests tolerate this; with few, treat p-values near the level with caution and look at the residuals.",
-            p_equation(p)
-        ));
-    }
-    if let Some(p) = c.equal_variance.p_value.filter(|p| *p < alpha) {
-        warnings.push(if homogeneous {
-            format!(
-                "Slopes agree, but the residual spread differs between groups (Brown–Forsythe {}). The common-slope comparison pools one residual variance, so its standard errors are too small for the noisier groups and too large for the quieter ones; treat borderline adjusted-mean differences with caution.",
-                p_equation(p)
-            )
-        } else {
-            format!(
-                "The residual spread differs between groups (Brown–Forsythe {}). Prefer the unpooled (Welch) slope comparisons; the regions of difference use the pooled variance and are approximate.",
-                p_equation(p)
-            )
-        });
-    }
-    if let Some(p) = c.covariate_balance.p_value.filter(|p| *p < alpha)
-        && homogeneous
-    {
-        warnings.push(format!(
-                "The groups differ in their {covariate} values (one-way F test, {}). Adjusted means then lean on the common slope to bridge the gap between groups; check that the lines are straight across the whole range.",
-                p_equation(p)
-            ));
-    }
-    if let Some(overlap) = c.covariate_balance.overlap
-        && (r.adjust_at < overlap[0] || r.adjust_at > overlap[1])
-    {
-        warnings.push(format!(
-                "The adjustment point {covariate} = {} lies outside the range every group covers ({} to {}).",
-                sig(r.adjust_at, 4),
-                sig(overlap[0], 4),
-                sig(overlap[1], 4)
-            ));
-    }
-    let flagged = c.influence.flagged_total;
-    if flagged > 0 && !plan.checks.sensitivity {
-        warnings.push(format!(
-            "{flagged} row{} lie{} beyond the influence cut-offs (listed under influential rows). Set `sensitivity = true` under [checks] to see the results without them.",
-            if flagged == 1 { "" } else { "s" },
-            if flagged == 1 { "s" } else { "" }
-        ));
-    }
-}
-
-fn spread_from_results(r: &Results, levels: &[&str]) -> Option<String> {
-    spread_warning(levels, r.groups.iter().map(|g| g.residual_sd))
 }

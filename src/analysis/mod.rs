@@ -18,6 +18,7 @@ mod compare;
 mod decision;
 mod eligible;
 mod error;
+mod findings;
 mod gate;
 pub mod influence;
 mod limits;

@@ -11,7 +11,8 @@ mod schema;
 
 pub use error::PlanError;
 pub use schema::{
-    BoundKind, Comparisons, Format, Procedure, Regions, Storage, Transform, derived_json_schema,
+    BoundKind, Comparisons, ForcedEqual, Format, Procedure, Regions, Storage, Transform,
+    derived_json_schema,
 };
 
 use std::ops::Range;
@@ -201,6 +202,8 @@ pub struct ReportSpec {
     pub formats: Vec<Format>,
     /// Output folder as written in the plan (relative to the plan's folder).
     pub out: Option<String>,
+    /// Where the common-slope tables go when the slopes differ.
+    pub forced_equal: ForcedEqual,
 }
 
 /// Byte spans of plan values that later stages may need to point at.
@@ -455,6 +458,7 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
         None => ReportSpec {
             formats: vec![Format::Markdown, Format::Json],
             out: None,
+            forced_equal: ForcedEqual::Section,
         },
         Some(r) => {
             let r = r.get_ref();
@@ -486,7 +490,14 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                 Some(o) => Some(nonempty(o, "report.out", &err)?),
                 None => None,
             };
-            ReportSpec { formats, out }
+            ReportSpec {
+                formats,
+                out,
+                forced_equal: r
+                    .forced_equal
+                    .as_ref()
+                    .map_or(ForcedEqual::Section, |f| *f.get_ref()),
+            }
         }
     };
 

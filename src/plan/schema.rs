@@ -290,6 +290,23 @@ pub(super) struct RawReport {
     /// overrides it.
     #[schemars(with = "Option<String>", extend("pattern" = "\\S", "examples" = ["../reports/nursery-2026"]))]
     pub out: Option<Spanned<String>>,
+    /// Where the common-slope results (adjusted means and their differences) go when
+    /// the equal-slopes test finds the slopes differ: "section" (default: a section of
+    /// their own, titled as what they are, a what-if on slopes forced equal, after the
+    /// slopes and regions) or "omit" (left out of the report; results.json keeps them).
+    #[schemars(with = "Option<ForcedEqual>", extend("default" = "section"))]
+    pub forced_equal: Option<Spanned<ForcedEqual>>,
+}
+
+/// Where the common-slope tables go when the slopes differ.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema, Default)]
+#[serde(rename_all = "lowercase")]
+pub enum ForcedEqual {
+    /// A section of their own, after the slopes and regions.
+    #[default]
+    Section,
+    /// Left out of the report.
+    Omit,
 }
 
 /// A transform applied to a column before fitting.

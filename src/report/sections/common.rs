@@ -5,18 +5,33 @@ use super::{Ctx, cell, ci, int, num, num3, p, pair, peq, vcell};
 use crate::report::cite::Work;
 use crate::report::doc::{Builder, Inline, aligns, t, v};
 
-pub(super) fn section(b: &mut Builder, c: &Ctx) {
+/// How the section presents the common-slope results.
+#[derive(Clone, Copy, PartialEq)]
+pub(super) enum Framing {
+    /// The slopes were not shown to differ: the comparison the report leads with.
+    Main,
+    /// The slopes differ: a what-if, set apart after the main results.
+    ForcedEqual,
+}
+
+pub(super) fn section(b: &mut Builder, c: &Ctx, framing: Framing) {
     let r = c.r;
     let cs = &r.common_slope;
     let ge = &r.group_effect;
     let at = num(Some(r.adjust_at));
-    b.section(vec![t("Groups on a common slope")]);
-    if !r.decision.homogeneous {
+    if framing == Framing::ForcedEqual {
+        b.section(vec![t("If the slopes were forced equal")]);
         b.para(vec![
-            t("The slopes differ, so this comparison describes the groups at "),
+            t("The equal-slopes test found that the slopes differ, so the numbers in this section rest on a model the data do not support: parallel lines with one common slope. They are kept for comparison with seasons whose slopes agreed, and describe the groups at "),
             v(&c.x),
-            t(format!(" = {at} only.")),
+            t(format!(
+                " = {at} only; do not read them as the groups' difference. Set "
+            )),
+            Inline::Code("forced_equal = \"omit\"".into()),
+            t(" under [report] to leave them out."),
         ]);
+    } else {
+        b.section(vec![t("Groups on a common slope")]);
     }
     b.para(vec![t(format!(
         "Common slope {} (SE {}, {} interval {}, {} df). Group effect given the common slope: F = {} on {} and {} df, {}; partial η² = {}.",

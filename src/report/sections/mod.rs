@@ -27,26 +27,26 @@ use crate::results::Results;
 pub fn report(r: &Results, figs: &[FigureRef]) -> Document {
     let c = Ctx::new(r);
     let mut b = Builder::default();
-    summary::section(&mut b, &c);
-    rows::section(&mut b, &c);
-    lines::section(&mut b, &c);
-    gate::section(&mut b, &c);
-    if r.decision.homogeneous {
-        common::section(&mut b, &c);
-        slopes::subsection(&mut b, &c);
-    } else {
-        slopes::subsection(&mut b, &c);
-        regions::section(&mut b, &c);
-        common::section(&mut b, &c);
+    // The decision record orders the sections; nothing here chooses on its own.
+    for key in &r.decision.sections {
+        match key.as_str() {
+            "summary" => summary::section(&mut b, &c),
+            "rows" => rows::section(&mut b, &c),
+            "lines" => lines::section(&mut b, &c),
+            "gate" => gate::section(&mut b, &c),
+            "slope-pairs" => slopes::subsection(&mut b, &c),
+            "common-slope" => common::section(&mut b, &c, common::Framing::Main),
+            "forced-equal" => common::section(&mut b, &c, common::Framing::ForcedEqual),
+            "regions" => regions::section(&mut b, &c),
+            "limits" => limits::section(&mut b, &c),
+            "checks" => checks::section(&mut b, &c),
+            "figures" => figures::section(&mut b, figs),
+            "warnings" => warnings::section(&mut b, &c),
+            "methods" => methods::section(&mut b, &c),
+            "provenance" => provenance::section(&mut b, &c),
+            _ => {}
+        }
     }
-    if !r.limits.is_empty() {
-        limits::section(&mut b, &c);
-    }
-    checks::section(&mut b, &c);
-    figures::section(&mut b, figs);
-    warnings::section(&mut b, &c);
-    methods::section(&mut b, &c);
-    provenance::section(&mut b, &c);
     let pv = &r.provenance;
     let mut doc = Document {
         title: r.title.clone(),
@@ -101,6 +101,11 @@ pub(crate) struct Ctx<'a> {
     pub conf: String,
     /// The p-value adjustment's name.
     pub adjust: &'static str,
+    /// The response's unit as measured, when the plan declares one and the response
+    /// is not transformed (a transformed value has no unit of its own).
+    pub y_unit: Option<String>,
+    /// The covariate's unit, likewise.
+    pub x_unit: Option<String>,
 }
 
 impl<'a> Ctx<'a> {
@@ -112,7 +117,48 @@ impl<'a> Ctx<'a> {
             g: r.model.group.clone(),
             conf: confidence(r),
             adjust: adjustment_name(&r.model.comparisons),
+            y_unit: unit(&r.model.response_units, &r.model.response_transform),
+            x_unit: unit(&r.model.covariate_units, &r.model.covariate_transform),
         }
+    }
+
+    /// The unit of a slope: `g per cm`, or `y per unit of x` without declared units.
+    pub fn slope_unit(&self) -> Runs {
+        match (&self.y_unit, &self.x_unit) {
+            (Some(yu), Some(xu)) => vec![t(format!("{yu} per {xu}"))],
+            (Some(yu), None) => vec![t(format!("{yu} per unit of ")), v(&self.x)],
+            _ => vec![v(&self.y), t(" per unit of "), v(&self.x)],
+        }
+    }
+
+    /// A response value with its unit: `99.61 % of label claim`.
+    pub fn y_value(&self, x: f64) -> String {
+        with_unit(num(Some(x)), &self.y_unit)
+    }
+
+    /// A covariate value with its unit: `24.00 months`.
+    pub fn x_value(&self, x: f64) -> String {
+        with_unit(num(Some(x)), &self.x_unit)
+    }
+
+    /// A point on the covariate: `24.00 months` with a declared unit, else
+    /// `months = 24.00`, so a column named after its unit is not said twice.
+    pub fn x_at(&self, text: String) -> Runs {
+        match &self.x_unit {
+            Some(u) => vec![t(format!("{text} {u}"))],
+            None => vec![v(&self.x), t(format!(" = {text}"))],
+        }
+    }
+}
+
+fn unit(declared: &Option<String>, transform: &str) -> Option<String> {
+    declared.clone().filter(|_| transform == "none")
+}
+
+pub(crate) fn with_unit(number: String, unit: &Option<String>) -> String {
+    match unit {
+        Some(u) => format!("{number} {u}"),
+        None => number,
     }
 }
 
