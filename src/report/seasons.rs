@@ -236,6 +236,9 @@ pub fn comparison_document(c: &Comparison) -> Document {
             "Both runs give the means at covariate = {}; each mean's degrees of freedom are its run's common-slope model's n − k − 1.",
             trimmed(am.adjust_at_old, 6)
         ))]);
+        if let Some(caution) = &am.caution {
+            b.para(prose(caution));
+        }
         let mut align = aligns(CHANGE_ALIGN);
         align.drain(1..3);
         b.table_aligned(

@@ -105,12 +105,38 @@ pub struct MeansComparison {
     pub compared: bool,
     /// Why not, when they were not.
     pub reason: Option<String>,
+    /// What the comparison stands on when a run printed its means as a what-if on
+    /// slopes forced equal; null otherwise.
+    #[serde(default)]
+    pub caution: Option<String>,
     /// Covariate value of the earlier run's adjusted means.
     pub adjust_at_old: f64,
     /// Covariate value of the later run's adjusted means.
     pub adjust_at_new: f64,
     /// One entry per group with an adjusted mean in both runs (empty when not compared).
     pub means: Vec<MeanChange>,
+}
+
+/// Where a run's report prints its adjusted means: "main", "forced-equal" or
+/// "omitted", from its decision record. Records written before the record held the
+/// key printed them in both branches (as the lead or after the slopes).
+fn printed_means(r: &Results) -> &str {
+    match r.decision.common_slope_tables.as_str() {
+        "" if r.decision.homogeneous => "main",
+        "" => "forced-equal",
+        other => other,
+    }
+}
+
+/// Whether a run's group effect showed a difference, from its decision record
+/// (older records: its p-value against its level).
+fn effect_differs(r: &Results) -> Option<bool> {
+    match r.decision.group_effect.as_str() {
+        "differ" | "exact-fit" => Some(true),
+        "not-shown-to-differ" => Some(false),
+        "not-computable" => None,
+        _ => r.group_effect.p_value.map(|p| p < r.model.alpha),
+    }
 }
 
 /// One group's adjusted mean then and now.
@@ -490,8 +516,8 @@ pub fn compare(old: &Run, new: &Run, alpha: f64) -> Comparison {
         alpha_new: rn.equal_slopes.alpha,
         flipped: ro.decision.homogeneous != rn.decision.homogeneous,
     };
-    let effect_old = ro.group_effect.p_value.map(|p| p < ro.model.alpha);
-    let effect_new = rn.group_effect.p_value.map(|p| p < rn.model.alpha);
+    let effect_old = effect_differs(ro);
+    let effect_new = effect_differs(rn);
     let effect = EffectChange {
         significant_old: effect_old,
         significant_new: effect_new,
@@ -598,32 +624,50 @@ fn compare_means(ro: &Results, rn: &Results, alpha: f64) -> MeansComparison {
     let mut out = MeansComparison {
         compared: false,
         reason: None,
+        caution: None,
         adjust_at_old: ro.adjust_at,
         adjust_at_new: rn.adjust_at,
         means: Vec::new(),
     };
-    let reason = match (ro.decision.homogeneous, rn.decision.homogeneous) {
-        (true, true) if ro.adjust_at != rn.adjust_at => Some(format!(
+    // Read from each run's decision record: a diff speaks of adjusted means exactly
+    // when both reports print them.
+    let (po, pn) = (printed_means(ro), printed_means(rn));
+    let reason = match (po, pn) {
+        ("omitted", "omitted") => Some(
+            "Neither run's report prints adjusted means (the slopes differ and the plans leave the what-if out), so there are none to compare."
+                .into(),
+        ),
+        ("omitted", _) => Some(
+            "The earlier run's report does not print adjusted means (its slopes differ and its plan leaves the what-if out), so there are none to compare."
+                .into(),
+        ),
+        (_, "omitted") => Some(
+            "The later run's report does not print adjusted means (its slopes differ and its plan leaves the what-if out), so there are none to compare."
+                .into(),
+        ),
+        _ if ro.adjust_at != rn.adjust_at => Some(format!(
             "The runs give adjusted means at different covariate values ({} before, {} now), \
              so the means are not comparable; fix adjust_at to one number in both plans to \
              compare them.",
             sig(ro.adjust_at, 6),
             sig(rn.adjust_at, 6)
         )),
-        (true, true) => None,
-        (false, false) => {
-            Some("Neither run took the slopes as equal, so neither compared adjusted means.".into())
-        }
-        (false, true) => Some(
-            "The earlier run did not take the slopes as equal, so it has no adjusted means \
-             to compare."
+        _ => None,
+    };
+    out.caution = match (po, pn) {
+        ("forced-equal", "forced-equal") => Some(
+            "Both runs found that the slopes differ: their adjusted means are what-ifs on slopes forced equal, so these changes describe the groups at this covariate value only."
                 .into(),
         ),
-        (true, false) => Some(
-            "The later run did not take the slopes as equal, so it has no adjusted means \
-             to compare."
+        ("forced-equal", _) => Some(
+            "The earlier run found that the slopes differ: its adjusted means are a what-if on slopes forced equal, so these changes describe the groups at this covariate value only."
                 .into(),
         ),
+        (_, "forced-equal") => Some(
+            "The later run found that the slopes differ: its adjusted means are a what-if on slopes forced equal, so these changes describe the groups at this covariate value only."
+                .into(),
+        ),
+        _ => None,
     };
     if let Some(reason) = reason {
         out.reason = Some(reason);

@@ -44,6 +44,11 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
             tb.align[3] = crate::report::doc::Align::Left;
         }
     }
+    // The section opens with the sentence the summary gives: one reading of the
+    // limits, from the decision record.
+    if let Some(reading) = &r.decision.limits {
+        b.para(super::summary::limits_sentence(c, reading));
+    }
     let model = r.limits.first().map_or("", |l| l.model.as_str());
     let conf = r.limits.first().map_or(String::new(), |l| {
         format!("{}%", trimmed(100.0 * l.confidence, 4))
@@ -105,10 +110,10 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
                         _ => "none: the bound never meets the limit".into(),
                     }),
                     cell(sig(l.observed_max, 4)),
-                    cell(if l.extrapolated {
-                        format!("{} (extrapolated)", num3(l.beyond))
-                    } else {
-                        "within the data".into()
+                    cell(match (l.crossing, l.extrapolated) {
+                        (Some(_), true) => format!("{} (extrapolated)", num3(l.beyond)),
+                        (Some(_), false) => "crossed within the data".into(),
+                        (None, _) => "n/a".into(),
                     }),
                 ]
             })

@@ -195,7 +195,7 @@ fn common_slope_runs(c: &Ctx) -> Runs {
 }
 
 /// The words for the model lot pooling chose.
-fn pooled_model(model: &str) -> &'static str {
+pub(super) fn pooled_model(model: &str) -> &'static str {
     match model {
         "separate" => "separate lines, one per group",
         "common-slope" => "parallel lines (one slope, each group's own intercept)",
@@ -232,7 +232,7 @@ fn pooling_lead(c: &Ctx, l: &LimitsReading) -> Runs {
 }
 
 /// What the limits come to, from the record's limits reading.
-fn limits_sentence(c: &Ctx, l: &LimitsReading) -> Runs {
+pub(super) fn limits_sentence(c: &Ctx, l: &LimitsReading) -> Runs {
     let bound = format!(
         "one-sided {}% {}",
         trimmed(100.0 * l.confidence, 4),
