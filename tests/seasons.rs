@@ -196,15 +196,13 @@ fn the_2025_to_2026_decision_flip_is_reported() {
     );
     assert!(flags.iter().any(|f| f.contains("slope of shade-1")));
 
-    // 2026 compares slopes, not adjusted means: nothing to compare, and said so.
+    // 2026 leads with its slopes but still prints adjusted means, as a what-if
+    // (issue 13: diff must not say it has none). They are not compared because the
+    // two runs give them at different covariate values, and the reason says so.
     assert!(!c.adjusted_means.compared && c.adjusted_means.means.is_empty());
-    assert!(
-        c.adjusted_means
-            .reason
-            .as_ref()
-            .unwrap()
-            .contains("later run")
-    );
+    let reason = c.adjusted_means.reason.as_ref().unwrap();
+    assert!(reason.contains("different covariate values"), "{reason}");
+    assert!(!reason.contains("no adjusted means"), "{reason}");
 
     // Row counts from demo-data/README.md.
     let d = &c.data;
@@ -217,14 +215,14 @@ fn the_2025_to_2026_decision_flip_is_reported() {
     let md = comparison_markdown(&c);
     let gate_row = md
         .lines()
-        .find(|l| l.starts_with("| Slopes taken as equal"))
+        .find(|l| l.starts_with("| Common slope used"))
         .unwrap();
     assert!(gate_row.contains("**flipped**"), "{gate_row}");
-    assert!(md.contains("later run did not take the slopes as equal"));
+    assert!(md.contains("different covariate values"));
     let text = comparison_text(&c);
     assert!(
         text.lines()
-            .any(|l| l.starts_with("Slopes taken as equal") && l.ends_with("FLIPPED"))
+            .any(|l| l.starts_with("Common slope used") && l.ends_with("FLIPPED"))
     );
     assert!(!text.contains("**") && !text.contains('|'));
 }

@@ -159,7 +159,7 @@ pub fn comparison_document(c: &Comparison) -> Document {
         vec![Align::Left; 4],
         vec![
             vec![
-                cell("Slopes taken as equal"),
+                cell("Common slope used"),
                 cell(gate_cell(gate.homogeneous_old, gate.p_old)),
                 cell(gate_cell(gate.homogeneous_new, gate.p_new)),
                 flip(gate.flipped),
@@ -417,7 +417,7 @@ pub fn trend_document(tr: &Trend) -> Document {
     );
     b.section(vec![t("Equal-slopes gate by run")]);
     b.table_aligned(
-        header(&["Run", "Slopes taken as equal", "p"]),
+        header(&["Run", "Common slope used", "p"]),
         aligns("llr"),
         tr.gates
             .iter()

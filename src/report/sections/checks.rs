@@ -160,7 +160,7 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
                 cell(p(s.equal_slopes.p_value)),
             ],
             vec![
-                cell("slopes taken as equal"),
+                cell("compared on a common slope"),
                 yes(r.decision.homogeneous),
                 yes(s.decision.homogeneous),
             ],

@@ -34,7 +34,7 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
         t("; "),
         cite(Work::SnedecorCochran1989),
         t(format!(
-            ") was tested with the extra-sum-of-squares F test of parallel lines against separate lines, at level {}; slopes were taken as equal when p was at or above that level.",
+            ") was tested with the extra-sum-of-squares F test of parallel lines against separate lines, at level {}; the groups were compared on a common slope when p was at or above that level, which shows only that the data do not detect a slope difference; the pairwise slope-difference intervals state which differences they rule out.",
             level(r.model.slopes_alpha)
         )),
         t(" Pairs of slopes were compared with t tests on the separate-lines model's pooled residual variance, and in unpooled form with Welch–Satterthwaite degrees of freedom ("),
