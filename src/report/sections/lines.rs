@@ -6,10 +6,18 @@ use crate::report::doc::{Builder, aligns, t};
 pub(super) fn section(b: &mut Builder, c: &Ctx) {
     let r = c.r;
     b.section(vec![t("Each group's own line")]);
-    b.para(vec![t(format!(
-        "Fitted separately to each group's rows; intervals at {} (t with n − 2 df).",
+    let mut units = vec![t(format!(
+        "Fitted separately to each group's rows; intervals at {} (t with n − 2 df). Slopes in ",
         c.conf
-    ))]);
+    ))];
+    units.extend(c.slope_unit());
+    match &c.y_unit {
+        Some(u) => units.push(t(format!(
+            "; intercepts and residual SDs in {u}."
+        ))),
+        None => units.push(t(".")),
+    }
+    b.para(units);
     b.table_aligned(
         vec![
             vcell(&c.g),
