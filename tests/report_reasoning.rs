@@ -471,3 +471,22 @@ fn diff_mentions_adjusted_means_exactly_when_both_reports_print_them() {
     );
     let _ = std::fs::remove_dir_all(dir);
 }
+
+/// The methods paragraph states the bound kind and the two-sided rule the limits used
+/// (issue 15: the rule from ICH Q1E 2003, from memory of the guideline).
+#[test]
+fn methods_state_the_bound_and_the_two_sided_rule() {
+    let (dir, json, report) = run(
+        "two-sided-prediction",
+        &lots(PARALLEL.0, PARALLEL.1),
+        "\n[limits]\nlower = 90.0\nupper = 110.0\nbound = \"prediction\"\n",
+    );
+    let first = &json["limits"][0];
+    assert_eq!(first["two_sided"], true);
+    assert_eq!(first["bound"], "prediction");
+    let methods = &report[report.find("## How this was computed").unwrap()..];
+    assert!(methods.contains("one-sided prediction bound for a single future result"));
+    assert!(methods.contains("each side uses the one-sided level (1 + confidence)/2"));
+    assert!(methods.contains("one-sided level of 97.5%"), "{methods}");
+    let _ = std::fs::remove_dir_all(dir);
+}

@@ -12,9 +12,7 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
     ))];
     units.extend(c.slope_unit());
     match &c.y_unit {
-        Some(u) => units.push(t(format!(
-            "; intercepts and residual SDs in {u}."
-        ))),
+        Some(u) => units.push(t(format!("; intercepts and residual SDs in {u}."))),
         None => units.push(t(".")),
     }
     b.para(units);

@@ -120,10 +120,30 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
             checks.push(t("the covariate values the plan lists."));
         }
     }
-    if !r.limits.is_empty() {
-        checks.push(t(
-            " Crossing points are where the one-sided confidence bound of the mean line meets the limit, solved exactly from the bound's closed form and checked numerically",
-        ));
+    if let Some(first) = r.limits.first() {
+        let bound = if first.bound == "prediction" {
+            "one-sided prediction bound for a single future result (the mean line's variance plus one residual variance)"
+        } else {
+            "one-sided confidence bound of the mean line"
+        };
+        checks.push(t(format!(
+            " Crossing points are where the {bound} meets the limit, at a one-sided level of {}%, solved exactly from the bound's closed form and checked numerically",
+            crate::number::trimmed(100.0 * first.confidence, 4)
+        )));
+        if first.two_sided {
+            checks.extend([
+                t("; with a lower and an upper limit each side uses the one-sided level (1 + confidence)/2, so that both sides together hold at the plan's confidence ("),
+                cite(Work::IchQ1e2003),
+                t(")"),
+            ]);
+        }
+        if let Some(s) = r.limits_supported.as_ref().filter(|s| s.cap.is_some()) {
+            checks.push(t(format!(
+                "; the supported period is the earliest crossing capped by the plan's extrapolation rule ({}) and rounded down to a step of {}",
+                s.rule,
+                crate::number::trimmed(s.round_to, 4)
+            )));
+        }
         if let Some(pool) = &r.pooling {
             checks.extend([
                 t("; lines were pooled by the two-step procedure of "),
