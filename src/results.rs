@@ -64,6 +64,10 @@ pub struct Results {
     pub limits_supported: Option<SupportedPeriod>,
     /// The lot-pooling procedure, when the plan chose it.
     pub pooling: Option<Pooling>,
+    /// The gate and the comparisons with a heteroscedasticity-consistent covariance,
+    /// when the plan's `tests.covariance` names one; the gate then decides on it.
+    #[serde(default)]
+    pub robust: Option<Robust>,
     /// What the gate decided and which comparison leads the report.
     pub decision: Decision,
     /// Everything a reader should be warned about, in plain words.
@@ -810,4 +814,77 @@ pub struct DecisionModels {
     /// separate-slopes model, parallel lines as the common-slope model; the pooled line
     /// is a model of its own).
     pub agree: bool,
+}
+
+/// The gate and the comparisons with a heteroscedasticity-consistent covariance
+/// (White 1980; MacKinnon & White 1985).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Robust {
+    /// "hc0", "hc1", "hc2" or "hc3".
+    pub covariance: String,
+    /// The Wald test that all slopes are equal, as an F on (k − 1, n − 2k) df.
+    pub equal_slopes: RobustWald,
+    /// What the classical F test alone would have decided (`equal_slopes.homogeneous`
+    /// follows the robust test).
+    pub classical_homogeneous: bool,
+    /// True when the robust and the classical tests decide differently.
+    pub disagree: bool,
+    /// Every pair of slopes; df n − 2k.
+    pub pairwise_slopes: Vec<RobustDifference>,
+    /// Adjusted means at `adjust_at` on the parallel-lines model; df n − k − 1.
+    pub adjusted_means: Vec<RobustMean>,
+    /// Every pair of adjusted means.
+    pub pairwise_adjusted: Vec<RobustDifference>,
+}
+
+/// A Wald test with a robust covariance.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RobustWald {
+    /// F = W/(k − 1); null when a slope's robust variance is zero or undefined.
+    pub f: Option<f64>,
+    /// k − 1.
+    pub df1: f64,
+    /// n − 2k.
+    pub df2: f64,
+    /// Upper-tail p-value.
+    pub p_value: Option<f64>,
+    /// Slopes taken as the same: p at or above slopes_alpha.
+    pub homogeneous: bool,
+}
+
+/// A difference a − b with a robust standard error.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RobustDifference {
+    /// First level.
+    pub a: String,
+    /// Second level.
+    pub b: String,
+    /// a − b.
+    pub difference: f64,
+    /// Robust standard error.
+    pub se: Option<f64>,
+    /// t statistic.
+    pub t: Option<f64>,
+    /// Residual df of the model.
+    pub df: f64,
+    /// Two-sided p-value.
+    pub p_value: Option<f64>,
+    /// Adjusted for the number of pairs (the plan's adjustment; Tukey–Kramer falls
+    /// back to Holm, the studentized range assuming one pooled variance).
+    pub p_adjusted: Option<f64>,
+    /// Interval at 1 − alpha, unadjusted.
+    pub ci: Option<[f64; 2]>,
+}
+
+/// An adjusted mean with a robust standard error.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RobustMean {
+    /// Group label.
+    pub level: String,
+    /// Adjusted mean (as `adjusted_means[].mean`).
+    pub mean: f64,
+    /// Robust standard error.
+    pub se: Option<f64>,
+    /// Interval at 1 − alpha.
+    pub ci: Option<[f64; 2]>,
 }

@@ -93,6 +93,34 @@ pub(super) fn conclude(
             warning: levels_disagree(&r, pooling.alpha, homogeneous, limits),
         });
     }
+    if let Some(rb) = r.robust.as_ref().filter(|rb| rb.disagree) {
+        let classical = r
+            .equal_slopes
+            .p_value
+            .map_or("no p-value".into(), p_equation);
+        let robust = rb
+            .equal_slopes
+            .p_value
+            .map_or("no p-value".into(), p_equation);
+        let cov = rb.covariance.to_uppercase();
+        found.push(Found {
+            finding: Finding {
+                check: "covariance-disagrees".into(),
+                level: None,
+                p_value: rb.equal_slopes.p_value,
+                statement: format!(
+                    "the classical equal-slopes test ({classical}) and the {cov} test ({robust}) decide differently"
+                ),
+                consequence: format!(
+                    "the decision follows the {cov} test, as the plan asks; the difference comes from residual spreads that differ between rows, so read the residual checks"
+                ),
+            },
+            warning: format!(
+                "The classical equal-slopes F test gives {classical} and the {cov} Wald test gives {robust}: at slopes_alpha = {} they decide differently. The report follows the {cov} test, as the plan asks (tests.covariance); the classical result is shown beside it.",
+                trimmed(r.equal_slopes.alpha, 4)
+            ),
+        });
+    }
     found.extend(findings::checks(plan, &r, homogeneous));
     let limits = limits_model.map(|m| limits_reading(m, &r.limits, &r));
     if let Some(l) = &limits {
@@ -140,7 +168,12 @@ pub(super) fn conclude(
             Procedure::LotPooling => "lot-pooling",
         }
         .into(),
-        sections: sections(homogeneous, common_slope_tables, limits.is_some()),
+        sections: sections(
+            homogeneous,
+            common_slope_tables,
+            limits.is_some(),
+            r.robust.is_some(),
+        ),
         limits,
         common_slope_tables: common_slope_tables.into(),
         findings: found.into_iter().map(|f| f.finding).collect(),
@@ -160,8 +193,27 @@ fn gate_reading(r: &Results, alpha: f64) -> GateReading {
     };
     let mut within: Option<[f64; 2]> = None;
     let mut widest: Option<(f64, [String; 2])> = None;
-    for p in &r.pairwise_slopes {
-        let Some([lo, hi]) = interval(p.difference, p.se, p.df, alpha) else {
+    // The intervals of the covariance the gate decided on.
+    let pairs: Vec<(&str, &str, Option<[f64; 2]>)> = match &r.robust {
+        Some(rb) => rb
+            .pairwise_slopes
+            .iter()
+            .map(|p| (p.a.as_str(), p.b.as_str(), p.ci))
+            .collect(),
+        None => r
+            .pairwise_slopes
+            .iter()
+            .map(|p| {
+                (
+                    p.a.as_str(),
+                    p.b.as_str(),
+                    interval(p.difference, p.se, p.df, alpha),
+                )
+            })
+            .collect(),
+    };
+    for (a, b, ci) in pairs {
+        let Some([lo, hi]) = ci else {
             continue;
         };
         within = Some(match within {
@@ -170,7 +222,7 @@ fn gate_reading(r: &Results, alpha: f64) -> GateReading {
         });
         let reach = lo.abs().max(hi.abs());
         if widest.as_ref().is_none_or(|(w, _)| reach > *w) {
-            widest = Some((reach, [p.a.clone(), p.b.clone()]));
+            widest = Some((reach, [a.to_string(), b.to_string()]));
         }
     }
     GateReading {
@@ -184,7 +236,20 @@ fn gate_reading(r: &Results, alpha: f64) -> GateReading {
 fn reason(r: &Results, gate: &GateReading, alpha: f64) -> String {
     let es = &r.equal_slopes;
     let level = trimmed(es.alpha, 4);
-    let p_text = es.p_value.map_or("no p-value".to_string(), p_equation);
+    let p_text = match r
+        .robust
+        .as_ref()
+        .filter(|rb| rb.equal_slopes.p_value.is_some())
+    {
+        Some(rb) => format!(
+            "{} with {} covariance",
+            rb.equal_slopes
+                .p_value
+                .map_or("no p-value".to_string(), p_equation),
+            rb.covariance.to_uppercase()
+        ),
+        None => es.p_value.map_or("no p-value".to_string(), p_equation),
+    };
     match gate.outcome.as_str() {
         "identical" => "The equal-slopes test cannot be computed (no residual variation and no slope difference, 0/0); the slopes are identical to rounding, so the groups are compared on a common slope.".to_string(),
         "exact-fit" => "The equal-slopes test gives an infinite F (every line passes exactly through its rows: exact fit), p = 0, so the slopes differ and the groups are compared by their slopes.".to_string(),
@@ -221,8 +286,16 @@ fn group_effect_reading(r: &Results) -> String {
 }
 
 /// The report's sections in reading order, by key.
-fn sections(homogeneous: bool, common_slope_tables: &str, limits: bool) -> Vec<String> {
+fn sections(
+    homogeneous: bool,
+    common_slope_tables: &str,
+    limits: bool,
+    robust: bool,
+) -> Vec<String> {
     let mut s = vec!["summary", "rows", "lines", "gate", "slope-pairs"];
+    if robust {
+        s.push("robust");
+    }
     s.push(if homogeneous {
         "common-slope"
     } else {

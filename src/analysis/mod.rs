@@ -24,6 +24,7 @@ pub mod influence;
 mod limits;
 mod pairwise;
 mod regions;
+mod robust;
 mod sensitivity;
 
 pub use error::AnalysisError;
@@ -279,13 +280,34 @@ fn procedure(
     });
 
     let groups = gate::group_lines(&levels, separate, alpha);
-    let equal_slopes = gate::equal_slopes(
+    let mut equal_slopes = gate::equal_slopes(
         separate,
         common,
         plan.tests.slopes_alpha,
         fits.floor,
         &mut warnings,
     );
+    let robust = robust::compute(
+        &robust::Settings {
+            kind: plan.tests.covariance,
+            alpha,
+            slopes_alpha: plan.tests.slopes_alpha,
+            comparisons: plan.tests.comparisons,
+            adjust_at,
+        },
+        &levels,
+        &eligible.groups,
+        separate,
+        common,
+        equal_slopes.homogeneous,
+    );
+    // With a robust covariance the gate decides on its Wald test (when it can be
+    // computed); the classical F stays in `equal_slopes` for the reader.
+    if let Some(rb) = &robust
+        && rb.equal_slopes.p_value.is_some()
+    {
+        equal_slopes.homogeneous = rb.equal_slopes.homogeneous;
+    }
     let homogeneous = equal_slopes.homogeneous;
     let pairwise_slopes = gate::pairwise_slopes(&levels, separate, plan.tests.comparisons);
     let common_slope = compare::common_slope(common, alpha);
@@ -459,6 +481,7 @@ fn procedure(
         limits_earliest,
         limits_supported,
         pooling,
+        robust,
         decision: decision::placeholder(),
         warnings: Vec::new(),
     };

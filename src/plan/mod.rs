@@ -11,8 +11,8 @@ mod schema;
 
 pub use error::PlanError;
 pub use schema::{
-    BoundKind, Comparisons, ForcedEqual, Format, Procedure, Regions, Storage, Transform,
-    derived_json_schema,
+    BoundKind, Comparisons, Covariance, ForcedEqual, Format, Procedure, Regions, Storage,
+    Transform, derived_json_schema,
 };
 
 use std::ops::Range;
@@ -142,6 +142,8 @@ pub struct TestSpec {
     pub procedure: Procedure,
     /// Level of both lot-pooling tests.
     pub pooling_alpha: f64,
+    /// Covariance of the estimates: classical or heteroscedasticity-consistent.
+    pub covariance: Covariance,
 }
 
 /// The `[limits]` table: where the mean response must stay.
@@ -412,6 +414,7 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
             compare_at: None,
             procedure: Procedure::EqualSlopesGate,
             pooling_alpha: 0.25,
+            covariance: Covariance::Classical,
         },
         Some(t) => {
             let t = t.get_ref();
@@ -430,6 +433,10 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                     .procedure
                     .as_ref()
                     .map_or(Procedure::EqualSlopesGate, |p| *p.get_ref()),
+                covariance: t
+                    .covariance
+                    .as_ref()
+                    .map_or(Covariance::Classical, |c| *c.get_ref()),
                 pooling_alpha: match &t.pooling_alpha {
                     None => 0.25,
                     Some(_) => level(t.pooling_alpha.as_ref(), "tests.pooling_alpha", &err)?,

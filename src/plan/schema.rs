@@ -182,6 +182,43 @@ pub(super) struct RawTests {
     /// 0 and 1.
     #[schemars(with = "Option<f64>", extend("exclusiveMinimum" = 0, "exclusiveMaximum" = 1, "default" = 0.25, "examples" = [0.1]))]
     pub pooling_alpha: Option<Spanned<f64>>,
+    /// Covariance of the estimates behind the equal-slopes test, the slope
+    /// differences, the adjusted means and their differences: "classical" (one pooled
+    /// residual variance) or a heteroscedasticity-consistent form, "hc0" (White 1980),
+    /// "hc1", "hc2" or "hc3" (MacKinnon & White 1985), for residual spreads that differ
+    /// between rows. With an "hc" form the gate decides on its Wald test, and the
+    /// report shows the classical result beside it when the two disagree.
+    #[schemars(with = "Option<Covariance>", extend("default" = "classical", "examples" = ["hc3"]))]
+    pub covariance: Option<Spanned<Covariance>>,
+}
+
+/// The covariance of the estimates.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
+#[serde(rename_all = "lowercase")]
+pub enum Covariance {
+    /// One pooled residual variance.
+    Classical,
+    /// White (1980): the squared residuals.
+    Hc0,
+    /// HC0 scaled by n/(n − p).
+    Hc1,
+    /// Squared residuals over 1 − h (MacKinnon & White 1985).
+    Hc2,
+    /// Squared residuals over (1 − h)², close to the jackknife (MacKinnon & White 1985).
+    Hc3,
+}
+
+impl Covariance {
+    /// The plan's name for the covariance.
+    pub fn name(self) -> &'static str {
+        match self {
+            Covariance::Classical => "classical",
+            Covariance::Hc0 => "hc0",
+            Covariance::Hc1 => "hc1",
+            Covariance::Hc2 => "hc2",
+            Covariance::Hc3 => "hc3",
+        }
+    }
 }
 
 #[derive(Debug, Deserialize, JsonSchema)]

@@ -22,6 +22,7 @@ pub enum Work {
     IchQ1e2003,
     JohnsonNeyman1936,
     Kramer1956,
+    MacKinnonWhite1985,
     Potthoff1964,
     Royston1995,
     Satterthwaite1946,
@@ -31,11 +32,12 @@ pub enum Work {
     Tukey1953,
     Welch1947,
     Welford1962,
+    White1980,
 }
 
 impl Work {
     /// Every work, for tests.
-    pub const ALL: [Work; 23] = [
+    pub const ALL: [Work; 25] = [
         Work::AbramowitzStegun1964,
         Work::BelsleyKuhWelsch1980,
         Work::BollenJackman1990,
@@ -50,6 +52,7 @@ impl Work {
         Work::IchQ1e2003,
         Work::JohnsonNeyman1936,
         Work::Kramer1956,
+        Work::MacKinnonWhite1985,
         Work::Potthoff1964,
         Work::Royston1995,
         Work::Satterthwaite1946,
@@ -59,6 +62,7 @@ impl Work {
         Work::Tukey1953,
         Work::Welch1947,
         Work::Welford1962,
+        Work::White1980,
     ];
 
     /// How the text cites it: authors and year.
@@ -123,6 +127,10 @@ impl Work {
                 "Kramer 1956",
                 "Kramer, C. Y. (1956) Biometrics 12, 307–310.",
             ),
+            Work::MacKinnonWhite1985 => (
+                "MacKinnon & White 1985",
+                "MacKinnon, J. G. & White, H. (1985) Journal of Econometrics 29, 305–325.",
+            ),
             Work::Potthoff1964 => (
                 "Potthoff 1964",
                 "Potthoff, R. F. (1964) Psychometrika 29, 241–256.",
@@ -156,6 +164,7 @@ impl Work {
                 "Welford 1962",
                 "Welford, B. P. (1962) Technometrics 4, 419–420.",
             ),
+            Work::White1980 => ("White 1980", "White, H. (1980) Econometrica 48, 817–838."),
         }
     }
 }

@@ -37,6 +37,20 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
             ") was tested with the extra-sum-of-squares F test of parallel lines against separate lines, at level {}; the groups were compared on a common slope when p was at or above that level, which shows only that the data do not detect a slope difference; the pairwise slope-difference intervals state which differences they rule out.",
             level(r.model.slopes_alpha)
         )),
+    ]);
+    if let Some(rb) = &r.robust {
+        m.extend([
+            t(format!(
+                " As the plan asks, the gate decided on the Wald test of equal slopes with the {} heteroscedasticity-consistent covariance (",
+                rb.covariance.to_uppercase()
+            )),
+            cite(Work::White1980),
+            t("; "),
+            cite(Work::MacKinnonWhite1985),
+            t("), as an F on k − 1 and n − 2k df; slope and adjusted-mean differences are given with the same covariance beside the classical ones."),
+        ]);
+    }
+    m.extend([
         t(" Pairs of slopes were compared with t tests on the separate-lines model's pooled residual variance, and in unpooled form with Welch–Satterthwaite degrees of freedom ("),
         cite(Work::Welch1947),
         t("; "),

@@ -13,6 +13,7 @@ mod lines;
 mod methods;
 mod provenance;
 mod regions;
+mod robust;
 mod rows;
 mod slopes;
 mod summary;
@@ -35,6 +36,7 @@ pub fn report(r: &Results, figs: &[FigureRef]) -> Document {
             "lines" => lines::section(&mut b, &c),
             "gate" => gate::section(&mut b, &c),
             "slope-pairs" => slopes::subsection(&mut b, &c),
+            "robust" => robust::section(&mut b, &c),
             "common-slope" => common::section(&mut b, &c, common::Framing::Main),
             "forced-equal" => common::section(&mut b, &c, common::Framing::ForcedEqual),
             "regions" => regions::section(&mut b, &c),

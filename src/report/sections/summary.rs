@@ -42,6 +42,21 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
 /// The test in words: `F = 0.87 on 3 and 46 df, p = 0.46`.
 fn gate_test(r: &Results) -> String {
     let es = &r.equal_slopes;
+    if let Some(rb) = r
+        .robust
+        .as_ref()
+        .filter(|rb| rb.equal_slopes.p_value.is_some())
+    {
+        let w = &rb.equal_slopes;
+        return format!(
+            "F = {} on {} and {} df with {} covariance, {}",
+            num(w.f),
+            int(w.df1),
+            int(w.df2),
+            rb.covariance.to_uppercase(),
+            peq(w.p_value)
+        );
+    }
     match r.decision.gate.outcome.as_str() {
         "exact-fit" => format!(
             "an infinite F on {} and {} df (every line passes exactly through its rows: exact fit), p = 0",

@@ -1,0 +1,154 @@
+#!/usr/bin/env python3
+"""Reference values for the heteroscedasticity-consistent covariance (issue 14 item 2).
+
+For each data set and each of HC0, HC1, HC2, HC3 (White 1980; MacKinnon & White 1985),
+statsmodels OLS with that covariance (use_t=True, so tests use t and F on the model's
+residual df) gives:
+* separate lines (each group its own intercept and slope): the Wald F test that all
+  slopes are equal (wald_test(R, use_f=True, scalar=True)) and every pair's slope
+  difference (t_test: effect, sd, t, p, 1 - alpha interval);
+* parallel lines (each group its own intercept, one slope): each group's adjusted mean
+  at the covariate's mean (t_test on [indicator, x0]) and every pair's difference.
+The designs are built with numpy from indicator columns, no formula strings.
+
+Writes robust.json beside this script; tests/reference_robust.rs reads it.
+
+Data:
+* penguins: body_mass_g on flipper_length_mm by species, from the palmerpenguins
+  package's copy in data/penguins.csv (rows with NA dropped);
+* fanning: INVENTED here (seeded numpy generator): three groups whose residual spread
+  grows with the covariate, the case the robust covariance is for; the classical
+  equal-slopes F (also written, from compare_f_test's nonrobust fit) rejects at 0.05
+  while HC3 does not.
+
+Run with the pinned environment of requirements.txt (generate.py checks the pins):
+
+    python3 tests/reference/generate_robust.py
+"""
+
+from __future__ import annotations
+
+import csv
+import json
+import sys
+from pathlib import Path
+
+HERE = Path(__file__).resolve().parent
+sys.path.insert(0, str(HERE))
+sys.dont_write_bytecode = True
+
+import generate as gen  # noqa: E402,F401  (version pins)
+
+import numpy as np  # noqa: E402
+import statsmodels.api as sm  # noqa: E402
+
+OUT = HERE / "robust.json"
+ALPHA = 0.05
+
+
+def penguins():
+    rows = []
+    with open(HERE / "data" / "penguins.csv", newline="") as f:
+        for r in csv.DictReader(f):
+            if r["flipper_length_mm"] in ("", "NA") or r["body_mass_g"] in ("", "NA"):
+                continue
+            rows.append((r["species"], float(r["flipper_length_mm"]), float(r["body_mass_g"])))
+    return rows
+
+
+def fanning():
+    # Seed chosen (by trying seeds in order from 20261202) so that the classical
+    # equal-slopes test rejects at 0.05 and the HC3 test does not: the case in which
+    # the report must show both.
+    rng = np.random.default_rng(20261208)
+    rows = []
+    for g, (a, b, n) in {"east": (2.0, 1.0, 40), "mid": (1.0, 1.25, 35), "west": (3.0, 0.8, 45)}.items():
+        x = np.round(rng.uniform(0.5, 10.0, size=n), 3)
+        y = np.round(a + b * x + rng.normal(0.0, 1.0, size=n) * (0.2 + 0.35 * x), 4)
+        rows.extend((g, float(xi), float(yi)) for xi, yi in zip(x, y))
+    return rows
+
+
+def case(name, rows, response, covariate, group):
+    levels = sorted({g for g, _, _ in rows})
+    k = len(levels)
+    g = np.array([levels.index(r[0]) for r in rows])
+    x = np.array([r[1] for r in rows])
+    y = np.array([r[2] for r in rows])
+    n = len(rows)
+    ind = np.zeros((n, k))
+    ind[np.arange(n), g] = 1.0
+    separate = np.hstack([ind, ind * x[:, None]])  # intercepts, then slopes
+    common = np.hstack([ind, x[:, None]])  # intercepts, then the common slope
+    x0 = float(x.mean())
+    out = {"name": name, "response": response, "covariate": covariate, "group": group,
+           "levels": levels, "adjust_at": x0, "covariances": {}}
+    classical = sm.OLS(y, separate).fit()
+    Rc = np.zeros((k - 1, 2 * k))
+    for i in range(k - 1):
+        Rc[i, k + i] = 1.0
+        Rc[i, 2 * k - 1] = -1.0
+    out["classical_equal_slopes_p"] = float(classical.wald_test(Rc, use_f=True, scalar=True).pvalue)
+    for cov in ("HC0", "HC1", "HC2", "HC3"):
+        fs = sm.OLS(y, separate).fit(cov_type=cov, use_t=True)
+        R = np.zeros((k - 1, 2 * k))
+        for i in range(k - 1):
+            R[i, k + i] = 1.0
+            R[i, 2 * k - 1] = -1.0
+        w = fs.wald_test(R, use_f=True, scalar=True)
+        pairs = []
+        for a in range(k):
+            for b in range(a + 1, k):
+                c = np.zeros(2 * k)
+                c[k + a], c[k + b] = 1.0, -1.0
+                t = fs.t_test(c)
+                lo, hi = t.conf_int(alpha=ALPHA)[0]
+                pairs.append({"a": levels[a], "b": levels[b], "difference": float(t.effect[0]),
+                              "se": float(t.sd[0, 0]), "t": float(t.tvalue[0, 0]),
+                              "p_value": float(t.pvalue), "ci": [float(lo), float(hi)]})
+        fc = sm.OLS(y, common).fit(cov_type=cov, use_t=True)
+        means = []
+        for a in range(k):
+            c = np.zeros(k + 1)
+            c[a], c[k] = 1.0, x0
+            t = fc.t_test(c)
+            lo, hi = t.conf_int(alpha=ALPHA)[0]
+            means.append({"level": levels[a], "mean": float(t.effect[0]), "se": float(t.sd[0, 0]),
+                          "ci": [float(lo), float(hi)]})
+        mean_pairs = []
+        for a in range(k):
+            for b in range(a + 1, k):
+                c = np.zeros(k + 1)
+                c[a], c[b] = 1.0, -1.0
+                t = fc.t_test(c)
+                lo, hi = t.conf_int(alpha=ALPHA)[0]
+                mean_pairs.append({"a": levels[a], "b": levels[b], "difference": float(t.effect[0]),
+                                   "se": float(t.sd[0, 0]), "t": float(t.tvalue[0, 0]),
+                                   "p_value": float(t.pvalue), "ci": [float(lo), float(hi)]})
+        out["covariances"][cov.lower()] = {
+            "equal_slopes": {"f": float(w.fvalue), "df1": float(w.df_num), "df2": float(w.df_denom),
+                             "p_value": float(w.pvalue)},
+            "pairwise_slopes": pairs,
+            "adjusted_means": means,
+            "pairwise_adjusted": mean_pairs,
+        }
+    return out, rows
+
+
+def main():
+    cases = []
+    for name, rows, (resp, cov, grp) in [
+        ("penguins", penguins(), ("body_mass_g", "flipper_length_mm", "species")),
+        ("fanning", fanning(), ("y", "x", "g")),
+    ]:
+        c, rows = case(name, rows, resp, cov, grp)
+        if name == "fanning":
+            c["csv"] = "g,x,y\n" + "".join(f"{g},{x!r},{y!r}\n" for g, x, y in rows)
+        cases.append(c)
+    OUT.write_text(json.dumps({"generator": "tests/reference/generate_robust.py",
+                               "alpha": ALPHA, "cases": cases}, indent=1) + "\n")
+    print(f"wrote {OUT}")
+
+
+if __name__ == "__main__":
+    main()
