@@ -68,6 +68,10 @@ pub struct Results {
     /// when the plan's `tests.covariance` names one; the gate then decides on it.
     #[serde(default)]
     pub robust: Option<Robust>,
+    /// Two one-sided tests of every pair of slopes against `tests.slope_margin`, when
+    /// the plan gives one.
+    #[serde(default)]
+    pub equivalence: Option<Equivalence>,
     /// What the gate decided and which comparison leads the report.
     pub decision: Decision,
     /// Everything a reader should be warned about, in plain words.
@@ -887,4 +891,47 @@ pub struct RobustMean {
     pub se: Option<f64>,
     /// Interval at 1 − alpha.
     pub ci: Option<[f64; 2]>,
+}
+
+/// Equivalence of slopes within a margin (Schuirmann 1987; Dixon & Pechmann 2005).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Equivalence {
+    /// The plan's slope_margin, response units per covariate unit.
+    pub margin: f64,
+    /// Level of each one-sided test.
+    pub alpha: f64,
+    /// "classical" or the HC form of the standard errors.
+    pub covariance: String,
+    /// The plan's gate rule: "difference" or "equivalence".
+    pub gate: String,
+    /// "shown-equivalent" (every pair), "shown-different" (some pair differs by more
+    /// than the margin) or "not-settled".
+    pub reading: String,
+    /// Every pair of slopes.
+    pub pairs: Vec<EquivalencePair>,
+}
+
+/// The two one-sided tests of one pair, a − b.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct EquivalencePair {
+    /// First level.
+    pub a: String,
+    /// Second level.
+    pub b: String,
+    /// Slope of a minus slope of b.
+    pub difference: f64,
+    /// Its standard error.
+    pub se: Option<f64>,
+    /// Degrees of freedom.
+    pub df: f64,
+    /// The (1 − 2 alpha) interval.
+    pub ci: Option<[f64; 2]>,
+    /// p of the test that the difference is at or below −margin.
+    pub p_lower: Option<f64>,
+    /// p of the test that it is at or above +margin.
+    pub p_upper: Option<f64>,
+    /// The larger of the two: below alpha means shown equivalent.
+    pub p_tost: Option<f64>,
+    /// "shown-equivalent", "shown-different" or "not-settled".
+    pub reading: String,
 }

@@ -34,9 +34,15 @@ fn run(case: &Value, covariance: &str) -> Value {
 
 /// As [`run`], and the report's Markdown.
 fn run_with_report(case: &Value, covariance: &str) -> (Value, String) {
+    run_with(case, &format!("covariance = \"{covariance}\""), covariance)
+}
+
+/// Runs a case with the given lines under [tests]; `tag` names the scratch folder.
+fn run_with(case: &Value, tests: &str, tag: &str) -> (Value, String) {
     let name = case["name"].as_str().unwrap();
     let dir = std::env::temp_dir().join(format!(
-        "slopewise-robust-{}-{name}-{covariance}",
+        "slopewise-robust-{}-{name}-{}",
+        tag.replace([' ', '"', '='], ""),
         std::process::id()
     ));
     let _ = std::fs::remove_dir_all(&dir);
@@ -64,8 +70,8 @@ covariate = "{}"
 group = "{}"
 
 [tests]
-covariance = "{covariance}"
 comparisons = "none"
+{tests}
 
 [report]
 out = "out"
@@ -271,4 +277,165 @@ fn a_robust_gate_that_disagrees_is_shown_beside_the_classical_one() {
     let c = run(case, "classical");
     assert!(c["robust"].is_null());
     assert_eq!(c["equal_slopes"]["homogeneous"], false);
+}
+
+/// Two one-sided tests of each slope difference against the margin (Schuirmann 1987;
+/// Dixon & Pechmann 2005): difference and SE from statsmodels' t_test, the 90 %
+/// interval from its conf_int(alpha = 0.10), the one-sided p-values from scipy's t on
+/// the model's residual df (generate_robust.py), classical and HC3.
+#[test]
+fn equivalence_of_slopes_matches_statsmodels_and_scipy() {
+    let reference = reference();
+    for case in reference["cases"].as_array().unwrap() {
+        let name = case["name"].as_str().unwrap();
+        let margin = case["slope_margin"].as_f64().unwrap();
+        for (cov, want) in case["equivalence"].as_object().unwrap() {
+            let tests = format!("covariance = \"{cov}\"\nslope_margin = {margin:?}");
+            let (r, report) = run_with(case, &tests, &format!("eq-{cov}"));
+            let e = &r["equivalence"];
+            assert_eq!(e["covariance"], cov.as_str());
+            let mut readings = Vec::new();
+            for w in want.as_array().unwrap() {
+                let (a, b) = (w["a"].as_str().unwrap(), w["b"].as_str().unwrap());
+                let f = find(&e["pairs"], a, b);
+                assert_eq!(f["a"], a, "pairs keep the reference's order");
+                let what = |q: &str| format!("{name} {cov} {a}-{b} {q}");
+                for q in ["difference", "se"] {
+                    close(
+                        f[q].as_f64().unwrap(),
+                        w[q].as_f64().unwrap(),
+                        1e-9,
+                        &what(q),
+                    );
+                }
+                close(
+                    f["df"].as_f64().unwrap(),
+                    w["df"].as_f64().unwrap(),
+                    0.0,
+                    &what("df"),
+                );
+                for i in 0..2 {
+                    close(
+                        f["ci"][i].as_f64().unwrap(),
+                        w["ci"][i].as_f64().unwrap(),
+                        1e-9,
+                        &what("ci"),
+                    );
+                }
+                for q in ["p_lower", "p_upper", "p_tost"] {
+                    close(
+                        f[q].as_f64().unwrap(),
+                        w[q].as_f64().unwrap(),
+                        1e-8,
+                        &what(q),
+                    );
+                }
+                // The reading follows from the interval and the margin.
+                let (lo, hi) = (w["ci"][0].as_f64().unwrap(), w["ci"][1].as_f64().unwrap());
+                let want_reading = if lo > -margin && hi < margin {
+                    "shown-equivalent"
+                } else if lo > margin || hi < -margin {
+                    "shown-different"
+                } else {
+                    "not-settled"
+                };
+                assert_eq!(f["reading"], want_reading, "{}", what("reading"));
+                readings.push(want_reading);
+            }
+            // The crafted margins give each reading at least once over the two cases.
+            let overall = if readings.contains(&"shown-different") {
+                "shown-different"
+            } else if readings.iter().all(|x| *x == "shown-equivalent") {
+                "shown-equivalent"
+            } else {
+                "not-settled"
+            };
+            assert_eq!(e["reading"], overall, "{name} {cov}");
+            assert_eq!(r["decision"]["equivalence"], overall);
+            assert!(report.contains("Dixon & Pechmann 2005"), "{name}");
+            assert!(report.contains("Is each slope difference within"), "{name}");
+        }
+    }
+}
+
+/// Under `gate = "equivalence"` the common-slope branch needs every pair shown
+/// equivalent: a test that does not reject is not enough.
+#[test]
+fn the_equivalence_gate_takes_the_common_slope_only_when_shown() {
+    let reference = reference();
+    let fanning = &reference["cases"].as_array().unwrap()[1];
+    // Margin 0.6: one pair shown equivalent, two not settled: separate slopes, although
+    // the HC3 test does not reject.
+    let (r, report) = run_with(
+        fanning,
+        "covariance = \"hc3\"\nslope_margin = 0.6\ngate = \"equivalence\"",
+        "eq-gate-narrow",
+    );
+    assert_eq!(r["robust"]["equal_slopes"]["homogeneous"], true);
+    assert_eq!(r["equal_slopes"]["homogeneous"], false);
+    assert_eq!(r["decision"]["gate"]["outcome"], "not-shown-equivalent");
+    assert!(report.contains("not shown parallel"), "{report}");
+    // Margin 2: every interval (all within ±1.01) lies inside: common slope.
+    let (r, report) = run_with(
+        fanning,
+        "slope_margin = 2.0\ngate = \"equivalence\"",
+        "eq-gate-wide",
+    );
+    assert_eq!(r["equivalence"]["reading"], "shown-equivalent");
+    assert_eq!(r["equal_slopes"]["homogeneous"], true);
+    assert_eq!(r["decision"]["gate"]["outcome"], "shown-equivalent");
+    assert!(
+        report.contains("every pair of slopes is shown equivalent within ±2.000"),
+        "{report}"
+    );
+}
+
+/// A margin needs untransformed columns, and the equivalence gate needs a margin:
+/// both are plan errors at the key's line.
+#[test]
+fn margin_plan_errors_point_at_the_key() {
+    let dir = std::env::temp_dir().join(format!("slopewise-robust-{}-errors", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    std::fs::write(
+        dir.join("data.csv"),
+        "g,x,y\na,1,2\na,2,3\na,3,5\nb,1,1\nb,2,2\nb,3,4\n",
+    )
+    .unwrap();
+    for (extra, message) in [
+        (
+            "[model.transform]\nresponse = \"log\"\n\n[tests]\nslope_margin = 0.1\n",
+            "tests.slope_margin is on the measured scale",
+        ),
+        (
+            "[tests]\ngate = \"equivalence\"\n",
+            "needs tests.slope_margin",
+        ),
+        (
+            "[tests]\nslope_margin = -1.0\n",
+            "must be a positive number",
+        ),
+    ] {
+        let plan = format!(
+            "title = \"t\"\n\n[data]\npath = \"data.csv\"\n\n[model]\nresponse = \"y\"\ncovariate = \"x\"\ngroup = \"g\"\n\n{extra}\n[report]\nout = \"out\"\n"
+        );
+        std::fs::write(dir.join("plan.toml"), &plan).unwrap();
+        let o = Command::new(env!("CARGO_BIN_EXE_slopewise"))
+            .arg("run")
+            .arg(dir.join("plan.toml"))
+            .output()
+            .unwrap();
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert!(!o.status.success(), "{extra}");
+        assert!(err.contains(message), "{err}");
+        let key = if extra.contains("gate") && !extra.contains("margin") {
+            "gate"
+        } else {
+            "slope_margin"
+        };
+        let line = plan.lines().position(|l| l.starts_with(key)).unwrap() + 1;
+        assert!(err.contains(&format!("plan.toml:{line}:")), "{err}");
+        assert!(!dir.join("out").exists());
+    }
+    let _ = std::fs::remove_dir_all(dir);
 }

@@ -162,7 +162,7 @@ pub(super) fn conclude(
         models,
         group_effect: group_effect_reading(&r),
         gate,
-        equivalence: None,
+        equivalence: r.equivalence.as_ref().map(|e| e.reading.clone()),
         procedure: match plan.tests.procedure {
             Procedure::EqualSlopesGate => "equal-slopes-gate",
             Procedure::LotPooling => "lot-pooling",
@@ -185,9 +185,15 @@ pub(super) fn conclude(
 /// The gate's outcome and the slope differences its pairwise intervals leave open.
 fn gate_reading(r: &Results, alpha: f64) -> GateReading {
     let es = &r.equal_slopes;
+    let equivalence_gate = r
+        .equivalence
+        .as_ref()
+        .is_some_and(|e| e.gate == "equivalence");
     let outcome = match es.status.as_str() {
         "exact-fit" => "exact-fit",
         "not-computable" => "identical",
+        _ if equivalence_gate && es.homogeneous => "shown-equivalent",
+        _ if equivalence_gate => "not-shown-equivalent",
         _ if es.homogeneous => "not-shown-to-differ",
         _ => "differ",
     };
@@ -250,7 +256,19 @@ fn reason(r: &Results, gate: &GateReading, alpha: f64) -> String {
         ),
         None => es.p_value.map_or("no p-value".to_string(), p_equation),
     };
+    let margin = r
+        .equivalence
+        .as_ref()
+        .map_or(String::new(), |e| sig(e.margin, 4));
     match gate.outcome.as_str() {
+        "shown-equivalent" => format!(
+            "Every pair of slopes is shown equivalent within the margin of ±{margin} (two one-sided tests at {}), so the groups are compared on a common slope.",
+            trimmed(alpha, 4)
+        ),
+        "not-shown-equivalent" => format!(
+            "The plan compares the groups on a common slope only when every pair of slopes is shown equivalent within ±{margin}; not every pair is (two one-sided tests at {}), so the groups are compared by their slopes. The equal-slopes test gives {p_text}.",
+            trimmed(alpha, 4)
+        ),
         "identical" => "The equal-slopes test cannot be computed (no residual variation and no slope difference, 0/0); the slopes are identical to rounding, so the groups are compared on a common slope.".to_string(),
         "exact-fit" => "The equal-slopes test gives an infinite F (every line passes exactly through its rows: exact fit), p = 0, so the slopes differ and the groups are compared by their slopes.".to_string(),
         "differ" => format!(

@@ -17,6 +17,7 @@ mod checks;
 mod compare;
 mod decision;
 mod eligible;
+mod equivalence;
 mod error;
 mod findings;
 mod gate;
@@ -308,8 +309,47 @@ fn procedure(
     {
         equal_slopes.homogeneous = rb.equal_slopes.homogeneous;
     }
-    let homogeneous = equal_slopes.homogeneous;
     let pairwise_slopes = gate::pairwise_slopes(&levels, separate, plan.tests.comparisons);
+    let equivalence = plan.tests.slope_margin.map(|margin| {
+        let pairs: Vec<equivalence::Difference> = match &robust {
+            Some(rb) => rb
+                .pairwise_slopes
+                .iter()
+                .map(|p| equivalence::Difference {
+                    a: &p.a,
+                    b: &p.b,
+                    difference: p.difference,
+                    se: p.se,
+                    df: p.df,
+                })
+                .collect(),
+            None => pairwise_slopes
+                .iter()
+                .map(|p| equivalence::Difference {
+                    a: &p.a,
+                    b: &p.b,
+                    difference: p.difference,
+                    se: p.se,
+                    df: p.df,
+                })
+                .collect(),
+        };
+        equivalence::slopes(
+            &pairs,
+            margin,
+            alpha,
+            plan.tests.covariance.name(),
+            plan.tests.gate,
+        )
+    });
+    // Under the equivalence rule the common-slope branch needs every pair shown
+    // equivalent; a test that does not reject is not enough.
+    if plan.tests.gate == crate::plan::GateRule::Equivalence
+        && let Some(eq) = &equivalence
+    {
+        equal_slopes.homogeneous = eq.reading == "shown-equivalent";
+    }
+    let homogeneous = equal_slopes.homogeneous;
     let common_slope = compare::common_slope(common, alpha);
     let group_effect = compare::group_effect(common, one, fits.floor, &mut warnings);
     let adjusted_means = compare::adjusted_means(&levels, &moments, common, adjust_at, alpha);
@@ -482,6 +522,7 @@ fn procedure(
         limits_supported,
         pooling,
         robust,
+        equivalence,
         decision: decision::placeholder(),
         warnings: Vec::new(),
     };

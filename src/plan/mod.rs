@@ -11,7 +11,7 @@ mod schema;
 
 pub use error::PlanError;
 pub use schema::{
-    BoundKind, Comparisons, Covariance, ForcedEqual, Format, Procedure, Regions, Storage,
+    BoundKind, Comparisons, Covariance, ForcedEqual, Format, GateRule, Procedure, Regions, Storage,
     Transform, derived_json_schema,
 };
 
@@ -144,6 +144,10 @@ pub struct TestSpec {
     pub pooling_alpha: f64,
     /// Covariance of the estimates: classical or heteroscedasticity-consistent.
     pub covariance: Covariance,
+    /// The slope difference that does not matter (measured scale), if given.
+    pub slope_margin: Option<f64>,
+    /// What the gate needs for the common-slope branch.
+    pub gate: GateRule,
 }
 
 /// The `[limits]` table: where the mean response must stay.
@@ -415,6 +419,8 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
             procedure: Procedure::EqualSlopesGate,
             pooling_alpha: 0.25,
             covariance: Covariance::Classical,
+            slope_margin: None,
+            gate: GateRule::Difference,
         },
         Some(t) => {
             let t = t.get_ref();
@@ -437,6 +443,8 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                     .covariance
                     .as_ref()
                     .map_or(Covariance::Classical, |c| *c.get_ref()),
+                slope_margin: slope_margin(t, &(response_transform, covariate_transform), &err)?,
+                gate: gate_rule(t, &err)?,
                 pooling_alpha: match &t.pooling_alpha {
                     None => 0.25,
                     Some(_) => level(t.pooling_alpha.as_ref(), "tests.pooling_alpha", &err)?,
@@ -685,6 +693,51 @@ fn nonempty(
         ));
     }
     Ok(value.get_ref().clone())
+}
+
+/// `tests.slope_margin`: finite and positive, on the measured scale, so both columns
+/// must be untransformed (a margin in measured units has no fixed size on a log
+/// scale).
+fn slope_margin(
+    t: &schema::RawTests,
+    transforms: &(Transform, Transform),
+    err: &impl Fn(Range<usize>, String, &str) -> PlanError,
+) -> Result<Option<f64>, PlanError> {
+    let Some(m) = &t.slope_margin else {
+        return Ok(None);
+    };
+    let v = *m.get_ref();
+    if !(v.is_finite() && v > 0.0) {
+        return Err(err(
+            m.span(),
+            format!("tests.slope_margin must be a positive number, found {v}"),
+            "give the largest slope difference that does not matter, in response units per covariate unit, such as 0.05",
+        ));
+    }
+    if transforms.0 != Transform::None || transforms.1 != Transform::None {
+        return Err(err(
+            m.span(),
+            "tests.slope_margin is on the measured scale, but the plan transforms the response or the covariate, so a slope has no size in measured units".into(),
+            "remove the transform, or remove slope_margin (equivalence on a transformed scale is not offered)",
+        ));
+    }
+    Ok(Some(v))
+}
+
+/// `tests.gate`: "equivalence" needs a margin.
+fn gate_rule(
+    t: &schema::RawTests,
+    err: &impl Fn(Range<usize>, String, &str) -> PlanError,
+) -> Result<GateRule, PlanError> {
+    match &t.gate {
+        None => Ok(GateRule::Difference),
+        Some(g) if *g.get_ref() == GateRule::Equivalence && t.slope_margin.is_none() => Err(err(
+            g.span(),
+            "tests.gate = \"equivalence\" needs tests.slope_margin".into(),
+            "add `slope_margin = 0.05` (the largest slope difference that does not matter) under [tests], or use gate = \"difference\"",
+        )),
+        Some(g) => Ok(*g.get_ref()),
+    }
 }
 
 fn level(

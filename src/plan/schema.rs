@@ -151,6 +151,10 @@ pub(super) struct RawTransform {
 
 #[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
+#[schemars(extend(
+    "if" = {"properties": {"gate": {"const": "equivalence"}}, "required": ["gate"]},
+    "then" = {"required": ["slope_margin"]}
+))]
 pub(super) struct RawTests {
     /// Level of the group comparisons and of the intervals (which are at 1 - alpha).
     /// Strictly between 0 and 1: write 0.05, not 5.
@@ -190,6 +194,27 @@ pub(super) struct RawTests {
     /// report shows the classical result beside it when the two disagree.
     #[schemars(with = "Option<Covariance>", extend("default" = "classical", "examples" = ["hc3"]))]
     pub covariance: Option<Spanned<Covariance>>,
+    /// The largest slope difference that does not matter, in response units per
+    /// covariate unit on the measured scale (both columns untransformed). With it,
+    /// every pair of slopes gets two one-sided tests against ±margin and a reading:
+    /// shown equivalent, shown different (by more than the margin) or not settled.
+    #[schemars(with = "Option<f64>", extend("exclusiveMinimum" = 0, "examples" = [0.05]))]
+    pub slope_margin: Option<Spanned<f64>>,
+    /// What the gate needs before it compares the groups on a common slope:
+    /// "difference" (the equal-slopes test does not reject) or "equivalence" (every
+    /// pair of slopes is shown equivalent within `slope_margin`, which it requires).
+    #[schemars(with = "Option<GateRule>", extend("default" = "difference", "examples" = ["difference"]))]
+    pub gate: Option<Spanned<GateRule>>,
+}
+
+/// What the gate needs before it takes the common-slope branch.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
+#[serde(rename_all = "lowercase")]
+pub enum GateRule {
+    /// The equal-slopes test does not reject.
+    Difference,
+    /// Every pair of slopes is shown equivalent within the margin.
+    Equivalence,
 }
 
 /// The covariance of the estimates.

@@ -14,6 +14,7 @@ pub enum Work {
     BrownForsythe1974,
     ChanGolubLeVeque1983,
     Cook1977,
+    DixonPechmann2005,
     Dunn1961,
     Fisher1932,
     HoaglinWelsch1978,
@@ -26,6 +27,7 @@ pub enum Work {
     Potthoff1964,
     Royston1995,
     Satterthwaite1946,
+    Schuirmann1987,
     SearleSpeedMilliken1980,
     ShapiroWilk1965,
     SnedecorCochran1989,
@@ -37,13 +39,14 @@ pub enum Work {
 
 impl Work {
     /// Every work, for tests.
-    pub const ALL: [Work; 25] = [
+    pub const ALL: [Work; 27] = [
         Work::AbramowitzStegun1964,
         Work::BelsleyKuhWelsch1980,
         Work::BollenJackman1990,
         Work::BrownForsythe1974,
         Work::ChanGolubLeVeque1983,
         Work::Cook1977,
+        Work::DixonPechmann2005,
         Work::Dunn1961,
         Work::Fisher1932,
         Work::HoaglinWelsch1978,
@@ -56,6 +59,7 @@ impl Work {
         Work::Potthoff1964,
         Work::Royston1995,
         Work::Satterthwaite1946,
+        Work::Schuirmann1987,
         Work::SearleSpeedMilliken1980,
         Work::ShapiroWilk1965,
         Work::SnedecorCochran1989,
@@ -98,6 +102,10 @@ impl Work {
                 "Chan, T. F., Golub, G. H. & LeVeque, R. J. (1983) The American Statistician 37, 242–247.",
             ),
             Work::Cook1977 => ("Cook 1977", "Cook, R. D. (1977) Technometrics 19, 15–18."),
+            Work::DixonPechmann2005 => (
+                "Dixon & Pechmann 2005",
+                "Dixon, P. M. & Pechmann, J. H. K. (2005) Ecology 86, 1751–1756.",
+            ),
             Work::Dunn1961 => ("Dunn 1961", "Dunn, O. J. (1961) JASA 56, 52–64."),
             Work::Fisher1932 => (
                 "Fisher 1932",
@@ -142,6 +150,10 @@ impl Work {
             Work::Satterthwaite1946 => (
                 "Satterthwaite 1946",
                 "Satterthwaite, F. E. (1946) Biometrics Bulletin 2, 110–114.",
+            ),
+            Work::Schuirmann1987 => (
+                "Schuirmann 1987",
+                "Schuirmann, D. J. (1987) Journal of Pharmacokinetics and Biopharmaceutics 15, 657–680.",
             ),
             Work::SearleSpeedMilliken1980 => (
                 "Searle, Speed & Milliken 1980",

@@ -41,6 +41,7 @@ import generate as gen  # noqa: E402,F401  (version pins)
 
 import numpy as np  # noqa: E402
 import statsmodels.api as sm  # noqa: E402
+from scipy import stats  # noqa: E402
 
 OUT = HERE / "robust.json"
 ALPHA = 0.05
@@ -132,7 +133,35 @@ def case(name, rows, response, covariate, group):
             "adjusted_means": means,
             "pairwise_adjusted": mean_pairs,
         }
+    # Two one-sided tests of each slope difference against a margin (Schuirmann 1987;
+    # for slopes, Dixon & Pechmann 2005): the difference and its SE from statsmodels'
+    # t_test, the (1 - 2 alpha) interval from its conf_int, the one-sided p-values
+    # from scipy's t distribution on the model's residual df.
+    margin = MARGINS[name]
+    out["slope_margin"] = margin
+    out["equivalence"] = {}
+    for cov in ("nonrobust", "HC3"):
+        fit = sm.OLS(y, separate).fit(cov_type=cov, use_t=True)
+        pairs = []
+        for a in range(k):
+            for b in range(a + 1, k):
+                c = np.zeros(2 * k)
+                c[k + a], c[k + b] = 1.0, -1.0
+                t = fit.t_test(c)
+                d, se = float(t.effect[0]), float(t.sd[0, 0])
+                lo, hi = t.conf_int(alpha=2 * ALPHA)[0]
+                df = float(fit.df_resid)
+                p_lower = float(stats.t.sf((d + margin) / se, df))
+                p_upper = float(stats.t.cdf((d - margin) / se, df))
+                pairs.append({"a": levels[a], "b": levels[b], "difference": d, "se": se,
+                              "df": df, "ci": [float(lo), float(hi)], "p_lower": p_lower,
+                              "p_upper": p_upper, "p_tost": max(p_lower, p_upper)})
+        out["equivalence"]["classical" if cov == "nonrobust" else cov.lower()] = pairs
     return out, rows
+
+
+# Slope margins for the equivalence reference, in response units per covariate unit.
+MARGINS = {"penguins": 8.0, "fanning": 0.6}
 
 
 def main():

@@ -1,7 +1,9 @@
 //! "Do the slopes agree?": the equal-slopes gate and its decision.
 
-use super::{Ctx, int, num, num3, peq};
-use crate::report::doc::{Builder, prose, t};
+use super::{Ctx, cell, ci, int, level, num, num3, p, pair, peq};
+use crate::number::sig;
+use crate::report::cite::Work;
+use crate::report::doc::{Builder, Inline, aligns, prose, t};
 
 pub(super) fn section(b: &mut Builder, c: &Ctx) {
     let r = c.r;
@@ -24,4 +26,60 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
         num3(r.effect_sizes.equal_slopes_partial_eta2)
     ))]);
     b.para(prose(&r.decision.reason));
+    if let Some(e) = &r.equivalence {
+        equivalence(b, c, e);
+    }
+}
+
+/// The two one-sided tests of every pair against the margin.
+fn equivalence(b: &mut Builder, c: &Ctx, e: &crate::results::Equivalence) {
+    let m = sig(e.margin, 4);
+    let mut runs = vec![t(format!("Is each slope difference within ±{m} "))];
+    runs.extend(c.slope_unit());
+    runs.extend([
+        t(format!(
+            "? Two one-sided tests at {} each (",
+            level(e.alpha)
+        )),
+        Inline::Cite(Work::Schuirmann1987),
+        t("; for slopes "),
+        Inline::Cite(Work::DixonPechmann2005),
+        t(format!(
+            "), {} standard errors: a pair is shown equivalent when its {}% interval lies inside ±{m}, shown to differ by more than the margin when it lies wholly beyond one side, and not settled otherwise.",
+            if e.covariance == "classical" { "pooled".to_string() } else { e.covariance.to_uppercase() },
+            crate::number::trimmed(100.0 * (1.0 - 2.0 * e.alpha), 4)
+        )),
+    ]);
+    b.para(runs);
+    b.table_aligned(
+        vec![
+            cell("pair"),
+            cell("difference"),
+            cell(format!(
+                "{}% interval",
+                crate::number::trimmed(100.0 * (1.0 - 2.0 * e.alpha), 4)
+            )),
+            cell(format!("p, at or below −{m}")),
+            cell(format!("p, at or above +{m}")),
+            cell("reading"),
+        ],
+        aligns("lrlrrl"),
+        e.pairs
+            .iter()
+            .map(|q| {
+                vec![
+                    pair(&q.a, &q.b),
+                    cell(num(Some(q.difference))),
+                    cell(ci(q.ci)),
+                    cell(p(q.p_lower)),
+                    cell(p(q.p_upper)),
+                    cell(match q.reading.as_str() {
+                        "shown-equivalent" => "shown equivalent",
+                        "shown-different" => "differ by more than the margin",
+                        _ => "not settled",
+                    }),
+                ]
+            })
+            .collect(),
+    );
 }

@@ -80,15 +80,22 @@ fn gate_paragraph(c: &Ctx) -> Runs {
     let es = &r.equal_slopes;
     let test = gate_test(r);
     match d.gate.outcome.as_str() {
-        "differ" | "exact-fit" => {
-            let mut runs = vec![t(format!(
-                "The groups' lines are not parallel: the equal-slopes test gives {test}{}.",
-                if d.gate.outcome == "differ" {
-                    format!(", below the gate's level of {}", level(es.alpha))
-                } else {
-                    String::new()
-                }
-            ))];
+        "differ" | "exact-fit" | "not-shown-equivalent" => {
+            let mut runs = vec![t(match d.gate.outcome.as_str() {
+                "not-shown-equivalent" => format!(
+                    "The groups' lines are not shown parallel: the plan asks for every pair of slopes to be shown equivalent within ±{}, and not every pair is (the equal-slopes test gives {test}).",
+                    r.equivalence
+                        .as_ref()
+                        .map_or("n/a".into(), |e| sig(e.margin, 4))
+                ),
+                "differ" => format!(
+                    "The groups' lines are not parallel: the equal-slopes test gives {test}, below the gate's level of {}.",
+                    level(es.alpha)
+                ),
+                _ => format!(
+                    "The groups' lines are not parallel: the equal-slopes test gives {test}."
+                ),
+            })];
             let low = r.groups.iter().min_by(|a, b| a.slope.total_cmp(&b.slope));
             let high = r.groups.iter().max_by(|a, b| a.slope.total_cmp(&b.slope));
             if let (Some(lo), Some(hi)) = (low, high) {
@@ -117,6 +124,17 @@ fn gate_paragraph(c: &Ctx) -> Runs {
             }));
             runs
         }
+        "shown-equivalent" => {
+            let mut runs = vec![t(format!(
+                "The groups' lines can be treated as parallel: every pair of slopes is shown equivalent within ±{} (two one-sided tests at {}; the equal-slopes test gives {test}).",
+                r.equivalence
+                    .as_ref()
+                    .map_or("n/a".into(), |e| sig(e.margin, 4)),
+                level(r.model.alpha)
+            ))];
+            runs.extend(common_slope_runs(c));
+            runs
+        }
         "identical" => {
             let mut runs = vec![t(format!(
                 "The groups' lines are parallel to rounding: the equal-slopes test has {test}, so the slopes are taken as equal because they are identical."
@@ -143,6 +161,13 @@ fn gate_paragraph(c: &Ctx) -> Runs {
                     ));
                 }
                 None => runs.push(t(".")),
+            }
+            if let Some(e) = &r.equivalence {
+                runs.push(t(format!(
+                    " Against the margin of ±{} (two one-sided tests): {}.",
+                    sig(e.margin, 4),
+                    equivalence_counts(e)
+                )));
             }
             runs.extend(common_slope_runs(c));
             runs
@@ -355,4 +380,21 @@ fn capitalised(s: &str) -> String {
         Some(first) => first.to_uppercase().chain(chars).collect(),
         None => String::new(),
     }
+}
+
+/// "2 pairs shown equivalent, 1 not settled".
+fn equivalence_counts(e: &crate::results::Equivalence) -> String {
+    let count = |what: &str| e.pairs.iter().filter(|p| p.reading == what).count();
+    let parts: Vec<String> = [
+        ("shown-equivalent", "shown equivalent"),
+        ("shown-different", "shown to differ by more than the margin"),
+        ("not-settled", "not settled"),
+    ]
+    .iter()
+    .filter_map(|(key, words)| {
+        let n = count(key);
+        (n > 0).then(|| format!("{n} pair{} {words}", if n == 1 { "" } else { "s" }))
+    })
+    .collect();
+    parts.join(", ")
 }
