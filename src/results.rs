@@ -274,6 +274,9 @@ pub struct SlopePair {
     pub p_value: Option<f64>,
     /// p-value adjusted for the number of pairs.
     pub p_adjusted: Option<f64>,
+    /// Interval for the difference at 1 − alpha (pooled, unadjusted).
+    #[serde(default)]
+    pub ci: Option<[f64; 2]>,
     /// The unpooled form, for groups whose residual spreads differ.
     pub welch: WelchTest,
 }
@@ -289,6 +292,9 @@ pub struct WelchTest {
     pub df: Option<f64>,
     /// Two-sided p-value.
     pub p_value: Option<f64>,
+    /// Interval at 1 − alpha with the Welch–Satterthwaite df.
+    #[serde(default)]
+    pub ci: Option<[f64; 2]>,
 }
 
 /// The common slope of the parallel-lines model.

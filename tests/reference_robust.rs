@@ -439,3 +439,28 @@ fn margin_plan_errors_point_at_the_key() {
     }
     let _ = std::fs::remove_dir_all(dir);
 }
+
+/// Every pair's classical slope difference with its 1 − alpha interval (issue 13
+/// item 3): statsmodels OLS (nonrobust) t_test on the contrast, conf_int(0.05).
+#[test]
+fn slope_difference_intervals_match_statsmodels() {
+    let reference = reference();
+    for case in reference["cases"].as_array().unwrap() {
+        let name = case["name"].as_str().unwrap();
+        let (r, report) = run_with(case, "", "classical-ci");
+        for w in case["equivalence"]["classical"].as_array().unwrap() {
+            let (a, b) = (w["a"].as_str().unwrap(), w["b"].as_str().unwrap());
+            let f = find(&r["pairwise_slopes"], a, b);
+            assert_eq!(f["a"], a);
+            for i in 0..2 {
+                close(
+                    f["ci"][i].as_f64().unwrap(),
+                    w["ci_two_sided"][i].as_f64().unwrap(),
+                    1e-9,
+                    &format!("{name} {a}-{b} ci"),
+                );
+            }
+        }
+        assert!(report.contains("slope differences outside it are ruled out"));
+    }
+}

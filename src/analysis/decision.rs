@@ -12,7 +12,6 @@
 //! themselves; the common-slope tables move to a what-if section or are left out.
 
 use super::findings::{self, Found};
-use super::interval;
 use crate::number::{p_equation, sig, trimmed};
 use crate::plan::{ForcedEqual, Plan, Procedure};
 use crate::results::{
@@ -51,7 +50,7 @@ pub(super) fn conclude(
     limits_model: Option<&str>,
 ) -> Results {
     let homogeneous = r.equal_slopes.homogeneous;
-    let gate = gate_reading(&r, plan.tests.alpha);
+    let gate = gate_reading(&r);
     let reason = reason(&r, &gate, plan.tests.alpha);
     let lead = if homogeneous {
         LEAD_COMMON
@@ -183,7 +182,7 @@ pub(super) fn conclude(
 }
 
 /// The gate's outcome and the slope differences its pairwise intervals leave open.
-fn gate_reading(r: &Results, alpha: f64) -> GateReading {
+fn gate_reading(r: &Results) -> GateReading {
     let es = &r.equal_slopes;
     let equivalence_gate = r
         .equivalence
@@ -209,13 +208,7 @@ fn gate_reading(r: &Results, alpha: f64) -> GateReading {
         None => r
             .pairwise_slopes
             .iter()
-            .map(|p| {
-                (
-                    p.a.as_str(),
-                    p.b.as_str(),
-                    interval(p.difference, p.se, p.df, alpha),
-                )
-            })
+            .map(|p| (p.a.as_str(), p.b.as_str(), p.ci))
             .collect(),
     };
     for (a, b, ci) in pairs {

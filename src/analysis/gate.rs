@@ -103,6 +103,7 @@ pub(super) fn pairwise_slopes(
     levels: &[&str],
     fit: &SeparateFit,
     method: Comparisons,
+    alpha: f64,
 ) -> Vec<SlopePair> {
     let s2 = fit.sigma2();
     let mut pairs = Vec::new();
@@ -121,7 +122,8 @@ pub(super) fn pairwise_slopes(
                 df: fit.df,
                 p_value: t.map(|t| t_two_sided(t, fit.df)),
                 p_adjusted: None,
-                welch: welch(difference, a.slope_se(), b.slope_se(), a.df, b.df),
+                ci: interval(difference, se, fit.df, alpha),
+                welch: welch(difference, a.slope_se(), b.slope_se(), a.df, b.df, alpha),
             });
         }
     }

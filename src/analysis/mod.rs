@@ -309,7 +309,7 @@ fn procedure(
     {
         equal_slopes.homogeneous = rb.equal_slopes.homogeneous;
     }
-    let pairwise_slopes = gate::pairwise_slopes(&levels, separate, plan.tests.comparisons);
+    let pairwise_slopes = gate::pairwise_slopes(&levels, separate, plan.tests.comparisons, alpha);
     let equivalence = plan.tests.slope_margin.map(|margin| {
         let pairs: Vec<equivalence::Difference> = match &robust {
             Some(rb) => rb

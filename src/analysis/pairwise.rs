@@ -68,6 +68,7 @@ pub(crate) fn welch(
     se_b: Option<f64>,
     df_a: f64,
     df_b: f64,
+    alpha: f64,
 ) -> WelchTest {
     let (Some(va), Some(vb)) = (se_a.map(|s| s * s), se_b.map(|s| s * s)) else {
         return WelchTest {
@@ -75,6 +76,7 @@ pub(crate) fn welch(
             t: None,
             df: None,
             p_value: None,
+            ci: None,
         };
     };
     let se = (va + vb).sqrt();
@@ -88,5 +90,6 @@ pub(crate) fn welch(
             (Some(t), Some(df)) => Some(t_two_sided(t, df)),
             _ => None,
         },
+        ci: df.and_then(|df| super::interval(difference, Some(se), df, alpha)),
     }
 }

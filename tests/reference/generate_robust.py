@@ -4,6 +4,8 @@
 For each data set and each of HC0, HC1, HC2, HC3 (White 1980; MacKinnon & White 1985),
 statsmodels OLS with that covariance (use_t=True, so tests use t and F on the model's
 residual df) gives:
+* the classical (nonrobust) fit's slope differences with their 1 - alpha intervals
+  (t_test on the contrast), for pairwise_slopes[].ci;
 * separate lines (each group its own intercept and slope): the Wald F test that all
   slopes are equal (wald_test(R, use_f=True, scalar=True)) and every pair's slope
   difference (t_test: effect, sd, t, p, 1 - alpha interval);
@@ -153,7 +155,9 @@ def case(name, rows, response, covariate, group):
                 df = float(fit.df_resid)
                 p_lower = float(stats.t.sf((d + margin) / se, df))
                 p_upper = float(stats.t.cdf((d - margin) / se, df))
+                lo95, hi95 = t.conf_int(alpha=ALPHA)[0]
                 pairs.append({"a": levels[a], "b": levels[b], "difference": d, "se": se,
+                              "ci_two_sided": [float(lo95), float(hi95)],
                               "df": df, "ci": [float(lo), float(hi)], "p_lower": p_lower,
                               "p_upper": p_upper, "p_tost": max(p_lower, p_upper)})
         out["equivalence"]["classical" if cov == "nonrobust" else cov.lower()] = pairs

@@ -1,20 +1,23 @@
 //! "Slope differences, pair by pair": pooled and unpooled (Welch) comparisons.
 
-use super::{Ctx, cell, int, num, num3, p, pair};
-use crate::report::doc::{Builder, t};
+use super::{Ctx, cell, ci, int, num, num3, p, pair};
+use crate::report::doc::{Builder, aligns, t};
 
 pub(super) fn subsection(b: &mut Builder, c: &Ctx) {
     let r = c.r;
     b.subsection(vec![t("Slope differences, pair by pair")]);
     b.para(vec![t(format!(
-        "Difference = first − second. Pooled: residual variance of the separate-lines model ({} df). Unpooled: each group's own variance, Welch–Satterthwaite df. p-values adjusted: {}.",
+        "Difference = first − second, with its {} interval (pooled, unadjusted): slope differences outside it are ruled out at that level, those inside are not. Pooled: residual variance of the separate-lines model ({} df). Unpooled: each group's own variance, Welch–Satterthwaite df. p-values adjusted: {}.",
+        c.conf,
         int(r.separate_slopes.df),
         c.adjust
     ))]);
-    b.table(
+    let interval = format!("{} interval", c.conf);
+    b.table_aligned(
         [
             "pair",
             "difference",
+            interval.as_str(),
             "SE",
             "t",
             "p",
@@ -25,13 +28,14 @@ pub(super) fn subsection(b: &mut Builder, c: &Ctx) {
         ]
         .map(cell)
         .to_vec(),
-        1,
+        aligns("lrlrrrrrrr"),
         r.pairwise_slopes
             .iter()
             .map(|s| {
                 vec![
                     pair(&s.a, &s.b),
                     cell(num(Some(s.difference))),
+                    cell(ci(s.ci)),
                     cell(num(s.se)),
                     cell(num(s.t)),
                     cell(p(s.p_value)),
