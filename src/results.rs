@@ -523,6 +523,13 @@ pub struct Influence {
     pub flagged_total: u64,
     /// The flagged rows with the largest Cook's distances (at most 50).
     pub flagged: Vec<FlaggedRow>,
+    /// Rows that matter: Cook's distance above the median of F(p, n − p) or
+    /// |externally studentized residual| above the Bonferroni t quantile.
+    #[serde(default)]
+    pub matters_total: u64,
+    /// Those rows, in data-row order (at most 50).
+    #[serde(default)]
+    pub matters: Vec<FlaggedRow>,
 }
 
 /// Cut-offs for flagging rows (common practice).
@@ -534,6 +541,14 @@ pub struct InfluenceCutoffs {
     pub cooks_distance: f64,
     /// |externally studentized residual| above this.
     pub studentized_residual: f64,
+    /// A row matters when its Cook's distance exceeds this: the median of
+    /// F(p, n − p) (Cook & Weisberg 1982).
+    #[serde(default)]
+    pub cooks_distance_matters: Option<f64>,
+    /// ... or when |externally studentized residual| exceeds this: the Bonferroni t
+    /// quantile t(1 − alpha/(2n); n − p − 1) (Weisberg 1985).
+    #[serde(default)]
+    pub studentized_bonferroni: Option<f64>,
 }
 
 /// A row beyond a cut-off.
@@ -549,6 +564,13 @@ pub struct FlaggedRow {
     pub leverage: f64,
     /// Externally studentized residual.
     pub studentized_residual: Option<f64>,
+    /// True when the row matters (beyond either strict cut-off).
+    #[serde(default)]
+    pub matters: bool,
+    /// Every cut-off the row is beyond: "cooks-distance", "studentized-residual" (the
+    /// strict ones), "leverage", "cooks-distance-4/n", "studentized-residual-3".
+    #[serde(default)]
+    pub why: Vec<String>,
 }
 
 /// The covariate across groups.
@@ -665,9 +687,15 @@ pub struct Pooling {
     pub stopped_at: Option<String>,
 }
 
-/// The key results again, without the flagged rows.
+/// The key results again, without the rows that matter.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Sensitivity {
+    /// The data rows left out (1-based, header excluded), ascending.
+    #[serde(default)]
+    pub rows: Vec<u64>,
+    /// Which conclusions change without them.
+    #[serde(default)]
+    pub changes: SensitivityChanges,
     /// Rows left out.
     pub rows_removed: u64,
     /// Rows used.
@@ -940,4 +968,32 @@ pub struct EquivalencePair {
     pub p_tost: Option<f64>,
     /// "shown-equivalent", "shown-different" or "not-settled".
     pub reading: String,
+}
+
+/// Which conclusions the refit without the rows that matter changes.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+pub struct SensitivityChanges {
+    /// The equal-slopes decision.
+    pub gate: bool,
+    /// The group effect's outcome.
+    pub group_effect: bool,
+    /// Pairs of the leading comparison whose significance after adjustment flips.
+    pub pairs: Vec<PairChange>,
+    /// The limits' deciding crossing with all rows, when there are limits.
+    pub crossing_before: Option<f64>,
+    /// ... and without the rows that matter.
+    pub crossing_after: Option<f64>,
+}
+
+/// A pair whose significance changes.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct PairChange {
+    /// First level.
+    pub a: String,
+    /// Second level.
+    pub b: String,
+    /// Significant after adjustment with all rows (null: not computable).
+    pub before: Option<bool>,
+    /// ... and without the rows that matter.
+    pub after: Option<bool>,
 }

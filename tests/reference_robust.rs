@@ -464,3 +464,80 @@ fn slope_difference_intervals_match_statsmodels() {
         assert!(report.contains("slope differences outside it are ruled out"));
     }
 }
+
+/// The rows that drive the fit (issue 13 item 5), on the separate-lines model both
+/// cases select: the cut-offs against scipy (f.ppf(0.5, p, n − p) and
+/// t.isf(alpha/(2n), n − p − 1)), the rows and their measures against statsmodels
+/// OLSInfluence (generate_robust.py), the refit without them, and the summary naming
+/// each by data row and group.
+#[test]
+fn rows_that_drive_the_fit_match_statsmodels() {
+    let reference = reference();
+    for case in reference["cases"].as_array().unwrap() {
+        let name = case["name"].as_str().unwrap();
+        let want = &case["influence"];
+        let (r, report) = run_with(case, "", "influence");
+        let inf = &r["checks"]["influence"];
+        assert_eq!(inf["model"], want["model"], "{name}");
+        for q in ["cooks_distance_matters", "studentized_bonferroni"] {
+            close(
+                inf["cutoffs"][q].as_f64().unwrap(),
+                want[q].as_f64().unwrap(),
+                1e-9,
+                &format!("{name} {q}"),
+            );
+        }
+        let rows: Vec<u64> = inf["matters"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|f| f["row"].as_u64().unwrap())
+            .collect();
+        let want_rows: Vec<u64> = want["matters"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|v| v.as_u64().unwrap())
+            .collect();
+        assert_eq!(rows, want_rows, "{name}");
+        assert_eq!(
+            inf["matters_total"].as_u64().unwrap(),
+            want_rows.len() as u64
+        );
+        for f in inf["matters"].as_array().unwrap() {
+            let row = f["row"].as_u64().unwrap().to_string();
+            close(
+                f["cooks_distance"].as_f64().unwrap(),
+                want["cooks_distance"][&row].as_f64().unwrap(),
+                1e-9,
+                &format!("{name} row {row} Cook's distance"),
+            );
+            close(
+                f["studentized_residual"].as_f64().unwrap(),
+                want["studentized_residual"][&row].as_f64().unwrap(),
+                1e-9,
+                &format!("{name} row {row} studentized residual"),
+            );
+            let level = f["level"].as_str().unwrap();
+            assert!(report.contains(&format!("{row} (`{level}`)")), "{name}");
+        }
+        // A refit exactly when some row drives the fit; leverage alone never does.
+        assert_eq!(
+            r["sensitivity"].is_object(),
+            !want_rows.is_empty(),
+            "{name}"
+        );
+        if let Some(s) = r["sensitivity"].as_object() {
+            assert_eq!(s["rows"], json_rows(&want_rows));
+        }
+        for f in inf["flagged"].as_array().unwrap() {
+            if f["why"] == serde_json::json!(["leverage"]) {
+                assert_eq!(f["matters"], false);
+            }
+        }
+    }
+}
+
+fn json_rows(rows: &[u64]) -> Value {
+    Value::Array(rows.iter().map(|r| Value::from(*r)).collect())
+}

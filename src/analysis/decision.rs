@@ -456,3 +456,95 @@ fn levels_disagree(r: &Results, pooling_alpha: f64, homogeneous: bool, limits: &
         trimmed(pooling_alpha, 4)
     )
 }
+
+/// The rows that matter, by data row and group, and what the refit without them
+/// changes: a finding and a warning, placed after the other checks' findings. Rows
+/// beyond the lenient cut-offs only (leverage alone included) stay in the table and
+/// out of the summary. Called once the refit, if any, is attached.
+pub(super) fn influence_finding(r: &mut Results) {
+    let inf = &r.checks.influence;
+    if inf.matters_total == 0 {
+        return;
+    }
+    let n = inf.matters_total;
+    let listed: Vec<String> = inf
+        .matters
+        .iter()
+        .map(|f| format!("{} (`{}`)", f.row, f.level))
+        .collect();
+    let more = n as usize - listed.len();
+    let rows = format!(
+        "row{} {}{}",
+        if n == 1 { "" } else { "s" },
+        listed.join(", "),
+        if more > 0 {
+            format!(" and {more} more")
+        } else {
+            String::new()
+        }
+    );
+    let strict = match (
+        inf.cutoffs.cooks_distance_matters,
+        inf.cutoffs.studentized_bonferroni,
+    ) {
+        (Some(c), Some(t)) => format!(
+            "Cook's distance above {} (the median of F) or |studentized residual| above {} (Bonferroni)",
+            sig(c, 3),
+            sig(t, 3)
+        ),
+        _ => "beyond the strict cut-offs".into(),
+    };
+    let statement = format!(
+        "data {rows} {} the fit ({strict})",
+        if n == 1 { "drives" } else { "drive" }
+    );
+    let consequence = match &r.sensitivity {
+        None => "the refit without them was turned off (`sensitivity = false` under [checks])"
+            .to_string(),
+        Some(s) => {
+            let mut changed = Vec::new();
+            if s.changes.gate {
+                changed.push("the equal-slopes decision".to_string());
+            }
+            if s.changes.group_effect {
+                changed.push("the group-effect outcome".to_string());
+            }
+            for p in &s.changes.pairs {
+                changed.push(format!("whether `{}` − `{}` differ", p.a, p.b));
+            }
+            if let (Some(a), Some(b)) = (s.changes.crossing_before, s.changes.crossing_after)
+                && (a - b).abs() > 1e-9 * a.abs().max(1.0)
+            {
+                changed.push(format!("the crossing ({} to {})", sig(a, 4), sig(b, 4)));
+            }
+            if changed.is_empty() {
+                "refitted without them, no conclusion changes (see the table under influential rows)".to_string()
+            } else {
+                format!(
+                    "refitted without them, {} change{}; examine those rows before relying on either result",
+                    changed.join(", "),
+                    if changed.len() == 1 { "s" } else { "" }
+                )
+            }
+        }
+    };
+    r.warnings.push(format!(
+        "Data {rows} {} the fit: {strict}. {}.",
+        if n == 1 { "drives" } else { "drive" },
+        capital(&consequence)
+    ));
+    r.decision.findings.push(Finding {
+        check: "influence".into(),
+        level: None,
+        p_value: None,
+        statement,
+        consequence,
+    });
+}
+
+fn capital(s: &str) -> String {
+    let mut c = s.chars();
+    c.next()
+        .map(|f| f.to_uppercase().chain(c).collect())
+        .unwrap_or_default()
+}

@@ -234,24 +234,5 @@ pub(super) fn checks(plan: &Plan, r: &Results, homogeneous: bool) -> Vec<Found> 
         ));
     }
 
-    let flagged = c.influence.flagged_total;
-    if flagged > 0 && !plan.checks.sensitivity {
-        out.push(found(
-            "influence",
-            None,
-            None,
-            format!(
-                "{flagged} row{} lie{} beyond the influence cut-offs",
-                if flagged == 1 { "" } else { "s" },
-                if flagged == 1 { "s" } else { "" }
-            ),
-            "set `sensitivity = true` under [checks] to see the results without them",
-            format!(
-                "{flagged} row{} lie{} beyond the influence cut-offs (listed under influential rows). Set `sensitivity = true` under [checks] to see the results without them.",
-                if flagged == 1 { "" } else { "s" },
-                if flagged == 1 { "s" } else { "" }
-            ),
-        ));
-    }
     out
 }

@@ -44,9 +44,15 @@ use crate::stats::quantile::quantiles;
 /// Runs the whole procedure. `provenance` is recorded as given.
 pub fn run(plan: &Plan, data: &Dataset, provenance: Provenance) -> Result<Results, AnalysisError> {
     let (mut results, flagged) = procedure(plan, data, provenance, None)?;
-    if plan.checks.sensitivity {
+    let rerun = match plan.checks.sensitivity {
+        Some(asked) => asked,
+        None => !flagged.rerun.is_empty(),
+    };
+    if rerun {
         sensitivity::attach(plan, data, &flagged, &mut results);
     }
+    // The rows that matter, and what changes without them, reach the summary.
+    decision::influence_finding(&mut results);
     // A statistic that cannot be computed is null with a warning; a NaN that got
     // past that is a defect, and no report must carry it (JSON would show null).
     if let Some(path) = crate::results::first_non_finite(&results) {
@@ -379,7 +385,9 @@ fn procedure(
                 let equal_variance = checks::equal_variance(&eligible.groups, separate, &mut w);
                 (normality, equal_variance, w)
             });
-            let influence = fits.selected(&eligible.groups, homogeneous).summarize();
+            let influence = fits
+                .selected(&eligible.groups, homogeneous)
+                .summarize(alpha);
             let residual_checks = residual_checks
                 .join()
                 .unwrap_or_else(|panic| std::panic::resume_unwind(panic));

@@ -1,6 +1,7 @@
-//! The sensitivity rerun: the whole procedure again without the rows beyond the
-//! Cook's distance or studentized-residual cut-offs, so a reader sees whether a
-//! handful of rows drive the decision.
+//! The sensitivity rerun: the whole procedure again without the rows that matter
+//! (see [`super::influence`]: Cook's distance above the median of F(p, n − p), or a
+//! studentized residual beyond the Bonferroni bound), so a reader sees whether a
+//! handful of rows drive the conclusions, and which ones change.
 //!
 //! Two things stay fixed so that the comparison shows the rows' effect and nothing
 //! else: the covariate value of the adjusted means (the full data's `adjust_at`; the
@@ -12,7 +13,7 @@ use super::influence::Flagged;
 use super::procedure;
 use crate::data::Dataset;
 use crate::plan::Plan;
-use crate::results::{Results, Sensitivity};
+use crate::results::{PairChange, Results, Sensitivity, SensitivityChanges};
 
 /// Reruns without `flagged` rows and stores the key results side by side.
 pub(super) fn attach(plan: &Plan, data: &Dataset, flagged: &Flagged, results: &mut Results) {
@@ -20,13 +21,13 @@ pub(super) fn attach(plan: &Plan, data: &Dataset, flagged: &Flagged, results: &m
     if rows.is_empty() {
         results.warnings.push(if flagged.leverage_only > 0 {
             format!(
-                "The sensitivity rerun was asked for, but no row lies beyond the Cook's distance or studentized-residual cut-offs; the {} row{} beyond the leverage cut-off alone {} kept (leverage marks a row's covariate value, not how it fits), so there is nothing to leave out.",
+                "The sensitivity rerun was asked for, but no row matters (none has a Cook's distance above the median of F or a studentized residual beyond the Bonferroni bound); the {} row{} beyond the leverage cut-off alone {} kept (leverage marks a row's covariate value, not how it fits), so there is nothing to leave out.",
                 flagged.leverage_only,
                 if flagged.leverage_only == 1 { "" } else { "s" },
                 if flagged.leverage_only == 1 { "is" } else { "are" }
             )
         } else {
-            "The sensitivity rerun was asked for, but no row lies beyond the influence cut-offs, so there is nothing to leave out."
+            "The sensitivity rerun was asked for, but no row matters (none has a Cook's distance above the median of F or a studentized residual beyond the Bonferroni bound), so there is nothing to leave out."
                 .into()
         });
         return;
@@ -40,13 +41,10 @@ pub(super) fn attach(plan: &Plan, data: &Dataset, flagged: &Flagged, results: &m
     ) {
         Ok((alt, _)) => {
             let changed = alt.decision.homogeneous != results.decision.homogeneous;
-            if changed {
-                results.warnings.push(format!(
-                    "Leaving out the {} influential rows changes the equal-slopes decision: the conclusion rests on those rows; examine them before relying on either result.",
-                    rows.len()
-                ));
-            }
+            let changes = changes(results, &alt);
             results.sensitivity = Some(Sensitivity {
+                rows: rows.iter().map(|r| u64::from(*r)).collect(),
+                changes,
                 rows_removed: rows.len() as u64,
                 rows_used: alt.data.rows_used,
                 rows_kept_leverage_only: flagged.leverage_only,
@@ -64,5 +62,55 @@ pub(super) fn attach(plan: &Plan, data: &Dataset, flagged: &Flagged, results: &m
             "The sensitivity rerun without the {} influential rows could not be done: {e}.",
             rows.len()
         )),
+    }
+}
+
+/// Which conclusions the refit changes: the gate's decision, the group effect's, each
+/// pair of the comparison the report leads with (significance after adjustment, at
+/// alpha), and the limits' crossing.
+fn changes(full: &Results, alt: &Results) -> SensitivityChanges {
+    let alpha = full.model.alpha;
+    let significant = |p: Option<f64>| p.map(|p| p < alpha);
+    let mut pairs = Vec::new();
+    if full.decision.homogeneous {
+        for a in &full.pairwise_adjusted {
+            if let Some(b) = alt
+                .pairwise_adjusted
+                .iter()
+                .find(|b| b.a == a.a && b.b == a.b)
+                && significant(a.p_adjusted) != significant(b.p_adjusted)
+            {
+                pairs.push(PairChange {
+                    a: a.a.clone(),
+                    b: a.b.clone(),
+                    before: significant(a.p_adjusted),
+                    after: significant(b.p_adjusted),
+                });
+            }
+        }
+    } else {
+        for a in &full.pairwise_slopes {
+            if let Some(b) = alt
+                .pairwise_slopes
+                .iter()
+                .find(|b| b.a == a.a && b.b == a.b)
+                && significant(a.p_adjusted) != significant(b.p_adjusted)
+            {
+                pairs.push(PairChange {
+                    a: a.a.clone(),
+                    b: a.b.clone(),
+                    before: significant(a.p_adjusted),
+                    after: significant(b.p_adjusted),
+                });
+            }
+        }
+    }
+    let crossing = |r: &Results| r.decision.limits.as_ref().and_then(|l| l.crossing);
+    SensitivityChanges {
+        gate: alt.decision.homogeneous != full.decision.homogeneous,
+        group_effect: alt.decision.group_effect != full.decision.group_effect,
+        pairs,
+        crossing_before: crossing(full),
+        crossing_after: crossing(alt),
     }
 }

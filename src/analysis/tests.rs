@@ -175,17 +175,32 @@ fn sensitivity_rerun_leaves_out_the_flagged_rows() {
     // One wild row in group a.
     let mut s = parallel("");
     s.push_str("a,11,60\n");
-    let r = run_csv("", &s).unwrap();
-    assert!(r.checks.influence.flagged_total >= 1);
-    assert!(r.checks.influence.flagged.iter().any(|f| f.row == 25));
-    assert!(r.sensitivity.is_none());
-    let text = "title = \"t\"\n[data]\npath = \"d.csv\"\n[model]\nresponse = \"y\"\ncovariate = \"x\"\ngroup = \"g\"\n[checks]\nsensitivity = true\n";
+    // The wild row drives the fit, so the refit without it runs unasked (issue 13).
+    let with = run_csv("", &s).unwrap();
+    let inf = &with.checks.influence;
+    assert!(inf.flagged.iter().any(|f| f.row == 25 && f.matters));
+    assert_eq!(inf.matters.iter().map(|f| f.row).collect::<Vec<_>>(), [25]);
+    let sens = with.sensitivity.clone().expect("sensitivity rerun");
+    assert_eq!(sens.rows, [25]);
+    assert_eq!(sens.rows_removed, inf.matters_total);
+    // The summary's finding names the row and its group.
+    let finding = with
+        .decision
+        .findings
+        .iter()
+        .find(|f| f.check == "influence")
+        .expect("an influence finding");
+    assert!(
+        finding.statement.contains("row 25 (`a`)"),
+        "{}",
+        finding.statement
+    );
+    // Turned off, there is no refit.
+    let text = "title = \"t\"\n[data]\npath = \"d.csv\"\n[model]\nresponse = \"y\"\ncovariate = \"x\"\ngroup = \"g\"\n[checks]\nsensitivity = false\n";
     let plan = plan::load("p.toml", text).unwrap();
     let dataset = data::load(&plan, s.as_bytes()).unwrap();
-    let provenance = r.provenance.clone();
-    let with = run(&plan, &dataset, provenance).unwrap();
-    let sens = with.sensitivity.expect("sensitivity rerun");
-    assert_eq!(sens.rows_removed, with.checks.influence.flagged_total);
+    let without = run(&plan, &dataset, with.provenance.clone()).unwrap();
+    assert!(without.sensitivity.is_none());
     assert_eq!(sens.rows_used, with.data.rows_used - sens.rows_removed);
     // Without the wild row group a's slope returns close to 2.
     assert!(

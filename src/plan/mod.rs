@@ -197,8 +197,10 @@ pub enum Extrapolation {
 /// The `[checks]` table.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct CheckSpec {
-    /// Rerun without the rows beyond the influence cut-offs, shown side by side.
-    pub sensitivity: bool,
+    /// The rerun without the rows that matter: `None` runs it whenever a row
+    /// matters, `Some(true)` always (saying so when there is nothing to leave out),
+    /// `Some(false)` never.
+    pub sensitivity: Option<bool>,
 }
 
 /// The `[report]` table.
@@ -634,11 +636,7 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
     };
 
     let checks = CheckSpec {
-        sensitivity: raw
-            .checks
-            .as_ref()
-            .and_then(|c| c.sensitivity)
-            .unwrap_or(false),
+        sensitivity: raw.checks.as_ref().and_then(|c| c.sensitivity),
     };
 
     Ok(Plan {

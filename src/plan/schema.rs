@@ -335,9 +335,11 @@ pub enum Procedure {
 #[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub(super) struct RawChecks {
-    /// true: rerun without the rows beyond the influence cut-offs and show both results
-    /// side by side.
-    #[schemars(extend("default" = false, "examples" = [true]))]
+    /// The refit without the rows that matter (Cook's distance above the median of
+    /// F(p, n − p), or a studentized residual beyond the Bonferroni t quantile),
+    /// shown beside the full results. Left out, it runs whenever a row matters;
+    /// true runs it always, false never.
+    #[schemars(extend("examples" = [false]))]
     pub sensitivity: Option<bool>,
 }
 

@@ -14,6 +14,7 @@ pub enum Work {
     BrownForsythe1974,
     ChanGolubLeVeque1983,
     Cook1977,
+    CookWeisberg1982,
     DixonPechmann2005,
     Dunn1961,
     Fisher1932,
@@ -32,6 +33,7 @@ pub enum Work {
     ShapiroWilk1965,
     SnedecorCochran1989,
     Tukey1953,
+    Weisberg1985,
     Welch1947,
     Welford1962,
     White1980,
@@ -39,13 +41,14 @@ pub enum Work {
 
 impl Work {
     /// Every work, for tests.
-    pub const ALL: [Work; 27] = [
+    pub const ALL: [Work; 29] = [
         Work::AbramowitzStegun1964,
         Work::BelsleyKuhWelsch1980,
         Work::BollenJackman1990,
         Work::BrownForsythe1974,
         Work::ChanGolubLeVeque1983,
         Work::Cook1977,
+        Work::CookWeisberg1982,
         Work::DixonPechmann2005,
         Work::Dunn1961,
         Work::Fisher1932,
@@ -64,6 +67,7 @@ impl Work {
         Work::ShapiroWilk1965,
         Work::SnedecorCochran1989,
         Work::Tukey1953,
+        Work::Weisberg1985,
         Work::Welch1947,
         Work::Welford1962,
         Work::White1980,
@@ -102,6 +106,10 @@ impl Work {
                 "Chan, T. F., Golub, G. H. & LeVeque, R. J. (1983) The American Statistician 37, 242–247.",
             ),
             Work::Cook1977 => ("Cook 1977", "Cook, R. D. (1977) Technometrics 19, 15–18."),
+            Work::CookWeisberg1982 => (
+                "Cook & Weisberg 1982",
+                "Cook, R. D. & Weisberg, S. (1982) Residuals and Influence in Regression.",
+            ),
             Work::DixonPechmann2005 => (
                 "Dixon & Pechmann 2005",
                 "Dixon, P. M. & Pechmann, J. H. K. (2005) Ecology 86, 1751–1756.",
@@ -170,6 +178,10 @@ impl Work {
             Work::Tukey1953 => (
                 "Tukey 1953",
                 "Tukey, J. W. (1953) The Problem of Multiple Comparisons (unpublished).",
+            ),
+            Work::Weisberg1985 => (
+                "Weisberg 1985",
+                "Weisberg, S. (1985) Applied Linear Regression, 2nd ed.",
             ),
             Work::Welch1947 => ("Welch 1947", "Welch, B. L. (1947) Biometrika 34, 28–35."),
             Work::Welford1962 => (

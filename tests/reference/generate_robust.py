@@ -44,19 +44,21 @@ import generate as gen  # noqa: E402,F401  (version pins)
 import numpy as np  # noqa: E402
 import statsmodels.api as sm  # noqa: E402
 from scipy import stats  # noqa: E402
+from statsmodels.stats.outliers_influence import OLSInfluence  # noqa: E402
 
 OUT = HERE / "robust.json"
 ALPHA = 0.05
 
 
 def penguins():
-    rows = []
+    rows, numbers = [], []
     with open(HERE / "data" / "penguins.csv", newline="") as f:
-        for r in csv.DictReader(f):
+        for i, r in enumerate(csv.DictReader(f), start=1):
             if r["flipper_length_mm"] in ("", "NA") or r["body_mass_g"] in ("", "NA"):
                 continue
             rows.append((r["species"], float(r["flipper_length_mm"]), float(r["body_mass_g"])))
-    return rows
+            numbers.append(i)
+    return rows, numbers
 
 
 def fanning():
@@ -69,10 +71,10 @@ def fanning():
         x = np.round(rng.uniform(0.5, 10.0, size=n), 3)
         y = np.round(a + b * x + rng.normal(0.0, 1.0, size=n) * (0.2 + 0.35 * x), 4)
         rows.extend((g, float(xi), float(yi)) for xi, yi in zip(x, y))
-    return rows
+    return rows, list(range(1, len(rows) + 1))
 
 
-def case(name, rows, response, covariate, group):
+def case(name, rows, numbers, response, covariate, group):
     levels = sorted({g for g, _, _ in rows})
     k = len(levels)
     g = np.array([levels.index(r[0]) for r in rows])
@@ -135,6 +137,23 @@ def case(name, rows, response, covariate, group):
             "adjusted_means": means,
             "pairwise_adjusted": mean_pairs,
         }
+    # Rows that drive the fit, on the separate-lines model (the one the classical gate
+    # selects for both cases): Cook's distance above scipy f.ppf(0.5, p, n - p), or
+    # |externally studentized residual| above t.isf(alpha / (2 n), n - p - 1), both
+    # measures from statsmodels OLSInfluence.
+    infl = OLSInfluence(sm.OLS(y, separate).fit())
+    p_sep = 2 * k
+    cooks_cut = float(stats.f.ppf(0.5, p_sep, n - p_sep))
+    t_cut = float(stats.t.isf(ALPHA / (2 * n), n - p_sep - 1))
+    cooks = infl.cooks_distance[0]
+    tstud = infl.resid_studentized_external
+    matters = [int(numbers[i]) for i in range(n) if cooks[i] > cooks_cut or abs(tstud[i]) > t_cut]
+    out["influence"] = {"model": "separate-slopes", "cooks_distance_matters": cooks_cut,
+                        "studentized_bonferroni": t_cut, "matters": matters,
+                        "cooks_distance": {str(numbers[i]): float(cooks[i]) for i in range(n)
+                                           if numbers[i] in matters},
+                        "studentized_residual": {str(numbers[i]): float(tstud[i]) for i in range(n)
+                                                 if numbers[i] in matters}}
     # Two one-sided tests of each slope difference against a margin (Schuirmann 1987;
     # for slopes, Dixon & Pechmann 2005): the difference and its SE from statsmodels'
     # t_test, the (1 - 2 alpha) interval from its conf_int, the one-sided p-values
@@ -170,11 +189,11 @@ MARGINS = {"penguins": 8.0, "fanning": 0.6}
 
 def main():
     cases = []
-    for name, rows, (resp, cov, grp) in [
+    for name, (rows, numbers), (resp, cov, grp) in [
         ("penguins", penguins(), ("body_mass_g", "flipper_length_mm", "species")),
         ("fanning", fanning(), ("y", "x", "g")),
     ]:
-        c, rows = case(name, rows, resp, cov, grp)
+        c, rows = case(name, rows, numbers, resp, cov, grp)
         if name == "fanning":
             c["csv"] = "g,x,y\n" + "".join(f"{g},{x!r},{y!r}\n" for g, x, y in rows)
         cases.append(c)

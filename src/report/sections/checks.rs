@@ -3,7 +3,8 @@
 
 use super::{Ctx, cell, ci, int, lead, num, num3, p, peq, vcell};
 use crate::number::sig;
-use crate::report::doc::{Align, Builder, t, v};
+use crate::report::cite::Work;
+use crate::report::doc::{Align, Builder, Inline, t, v};
 
 pub(super) fn section(b: &mut Builder, c: &Ctx) {
     let r = c.r;
@@ -109,6 +110,7 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
                 cell("Cook's distance"),
                 cell("leverage"),
                 cell("studentized residual"),
+                cell("drives the fit?"),
             ],
             vec![
                 Align::Right,
@@ -116,6 +118,7 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
                 Align::Right,
                 Align::Right,
                 Align::Right,
+                Align::Left,
             ],
             inf.flagged
                 .iter()
@@ -126,17 +129,54 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
                         cell(num3(f.cooks_distance)),
                         cell(num3(Some(f.leverage))),
                         cell(num3(f.studentized_residual)),
+                        cell(if f.matters {
+                            "yes"
+                        } else if f.why.iter().all(|w| w == "leverage") {
+                            "no: leverage only"
+                        } else {
+                            "no"
+                        }),
                     ]
                 })
                 .collect(),
         );
     }
+    if let (Some(cm), Some(tb)) = (
+        inf.cutoffs.cooks_distance_matters,
+        inf.cutoffs.studentized_bonferroni,
+    ) {
+        b.para(vec![
+            t(format!(
+                "A row drives the fit when its Cook's distance exceeds {} (the median of F on p and n − p df; ",
+                sig(cm, 3)
+            )),
+            Inline::Cite(Work::Cook1977),
+            t("; "),
+            Inline::Cite(Work::CookWeisberg1982),
+            t(format!(
+                ") or its |externally studentized residual| exceeds {} (the Bonferroni t quantile over all n rows at the plan's level, an outlier test; ",
+                sig(tb, 3),
+            )),
+            Inline::Cite(Work::Weisberg1985),
+            t(format!(
+                "). {} row{} drive{} the fit{}.",
+                inf.matters_total,
+                if inf.matters_total == 1 { "" } else { "s" },
+                if inf.matters_total == 1 { "s" } else { "" },
+                if inf.matters_total > 0 && r.sensitivity.is_some() {
+                    "; the refit without them follows"
+                } else {
+                    ""
+                }
+            )),
+        ]);
+    }
     if let Some(s) = &r.sensitivity {
-        b.subsection(vec![t("Without the influential rows")]);
+        b.subsection(vec![t("Without the rows that drive the fit")]);
         let kept = s.rows_kept_leverage_only;
         b.para(vec![
             t(format!(
-                "The same procedure on {} rows, leaving out the {} rows beyond the Cook's distance or studentized-residual cut-off; {kept} row{} beyond the leverage cut-off alone {} kept (leverage marks where a row sits on ",
+                "The same procedure on {} rows, leaving out the {} rows that drive the fit; {kept} row{} beyond the leverage cut-off alone {} kept (leverage marks where a row sits on ",
                 s.rows_used,
                 s.rows_removed,
                 if kept == 1 { "" } else { "s" },

@@ -352,7 +352,7 @@ fn findings(b: &mut Builder, r: &Results) {
     let list = &r.decision.findings;
     if list.is_empty() {
         b.para(vec![t(
-            "Checks: none failed (normality of the residuals, equal spread, covariate balance; no row lies beyond the influence cut-offs).",
+            "Checks: none failed (normality of the residuals, equal spread, covariate balance; no row drives the fit).",
         )]);
         return;
     }
