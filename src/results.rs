@@ -156,6 +156,13 @@ pub struct ModelEcho {
     pub response_units: Option<String>,
     /// Unit of the covariate as measured, when the plan gives one.
     pub covariate_units: Option<String>,
+    /// How a slope reads on the measured scale: "per-unit" (neither column is
+    /// transformed), "ratio-per-unit" (log response: exp(slope) is the factor per
+    /// covariate unit), "elasticity" (log response and log covariate: % change of the
+    /// response per 1 % of the covariate), "per-log-unit" (log covariate only) or
+    /// "transformed" (a square root: no plain reading).
+    #[serde(default)]
+    pub slope_reading: String,
 }
 
 /// Rows read, used and dropped.
@@ -362,6 +369,19 @@ pub struct AdjustedMean {
     pub ci: Option<[f64; 2]>,
     /// False when adjust_at lies outside this group's covariate range.
     pub within_range: bool,
+    /// For a log response: the geometric mean on the measured scale, exp of the
+    /// mean and of its interval.
+    #[serde(default)]
+    pub back_transformed: Option<BackTransformed>,
+}
+
+/// An estimate on a log scale, back on the measured scale.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct BackTransformed {
+    /// exp (or 10^) of the estimate: a geometric mean, or for a difference a ratio.
+    pub value: f64,
+    /// The interval's ends, transformed alike.
+    pub ci: Option<[f64; 2]>,
 }
 
 /// A difference of two adjusted means, a − b.
@@ -387,6 +407,9 @@ pub struct MeanPair {
     pub p_adjusted: Option<f64>,
     /// Tukey–Kramer p-value: studentized range with k groups at q = |t|·√2.
     pub p_tukey: Option<f64>,
+    /// For a log response: the ratio of the two geometric means and its interval.
+    #[serde(default)]
+    pub ratio: Option<BackTransformed>,
 }
 
 /// Johnson–Neyman region of significance for one pair of groups.
@@ -429,6 +452,9 @@ pub struct DifferenceAt {
     pub df: f64,
     /// Two-sided p-value.
     pub p_value: Option<f64>,
+    /// For a log response: the ratio of the two lines' values at `at`, with interval.
+    #[serde(default)]
+    pub ratio: Option<BackTransformed>,
 }
 
 /// Partial eta squared, SS_effect / (SS_effect + SS_residual).

@@ -541,3 +541,105 @@ fn rows_that_drive_the_fit_match_statsmodels() {
 fn json_rows(rows: &[u64]) -> Value {
     Value::Array(rows.iter().map(|r| Value::from(*r)).collect())
 }
+
+/// A log response read on its measured scale (issue 13 item 8): penguins on the
+/// log–log scale, the classical parallel-lines fit of statsmodels, adjusted means and
+/// their differences exponentiated in generate_robust.py: geometric means and ratios
+/// with intervals, and the slope read as an elasticity.
+#[test]
+fn log_responses_give_geometric_means_ratios_and_elasticities() {
+    let reference = reference();
+    let want = &reference["back_transformed"];
+    let case = &reference["cases"].as_array().unwrap()[0];
+    assert_eq!(case["name"], "penguins");
+    let dir = std::env::temp_dir().join(format!("slopewise-robust-{}-loglog", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let plan = format!(
+        "title = \"log-log\"\n\n[data]\npath = \"{}\"\nmissing = [\"\", \"NA\"]\n\n[model]\nresponse = \"body_mass_g\"\ncovariate = \"flipper_length_mm\"\ngroup = \"species\"\n\n[model.transform]\nresponse = \"log\"\ncovariate = \"log\"\n\n[tests]\nslopes_alpha = 0.001\n\n[report]\nout = \"out\"\nformats = [\"json\", \"markdown\"]\n",
+        root().join("tests/reference/data/penguins.csv").display()
+    );
+    std::fs::write(dir.join("plan.toml"), plan).unwrap();
+    let o = Command::new(env!("CARGO_BIN_EXE_slopewise"))
+        .arg("run")
+        .arg(dir.join("plan.toml"))
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let r: Value =
+        serde_json::from_str(&std::fs::read_to_string(dir.join("out/results.json")).unwrap())
+            .unwrap();
+    let report = std::fs::read_to_string(dir.join("out/report.md")).unwrap();
+    assert_eq!(r["model"]["slope_reading"], "elasticity");
+    assert_eq!(
+        r["decision"]["homogeneous"], true,
+        "slopes_alpha 0.001 keeps the common slope"
+    );
+    close(
+        r["adjust_at"].as_f64().unwrap(),
+        want["adjust_at"].as_f64().unwrap(),
+        1e-12,
+        "adjust_at",
+    );
+    close(
+        r["common_slope"]["slope"].as_f64().unwrap(),
+        want["common_slope"].as_f64().unwrap(),
+        1e-9,
+        "slope",
+    );
+    for w in want["adjusted_means"].as_array().unwrap() {
+        let m = r["adjusted_means"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|m| m["level"] == w["level"])
+            .unwrap();
+        let bt = &m["back_transformed"];
+        close(
+            bt["value"].as_f64().unwrap(),
+            w["geometric_mean"].as_f64().unwrap(),
+            1e-9,
+            "geometric mean",
+        );
+        for i in 0..2 {
+            close(
+                bt["ci"][i].as_f64().unwrap(),
+                w["ci"][i].as_f64().unwrap(),
+                1e-9,
+                "geometric mean ci",
+            );
+        }
+    }
+    for w in want["ratios"].as_array().unwrap() {
+        let d = find(
+            &r["pairwise_adjusted"],
+            w["a"].as_str().unwrap(),
+            w["b"].as_str().unwrap(),
+        );
+        assert_eq!(d["a"], w["a"]);
+        close(
+            d["ratio"]["value"].as_f64().unwrap(),
+            w["ratio"].as_f64().unwrap(),
+            1e-9,
+            "ratio",
+        );
+        for i in 0..2 {
+            close(
+                d["ratio"]["ci"][i].as_f64().unwrap(),
+                w["ci"][i].as_f64().unwrap(),
+                1e-9,
+                "ratio ci",
+            );
+        }
+    }
+    assert!(
+        report.contains("geometric mean of body\\_mass\\_g"),
+        "table column"
+    );
+    assert!(
+        report.contains("an elasticity: 1 % more"),
+        "summary reading"
+    );
+    assert!(report.contains("the geometric means stand in the ratio"));
+    let _ = std::fs::remove_dir_all(dir);
+}

@@ -78,6 +78,7 @@ pub(super) fn adjusted_means(
             let d = x0 - m.mean_x;
             let se = s2.map(|s2| (s2 * (1.0 / m.n as f64 + d * d / fit.sxx_within)).sqrt());
             AdjustedMean {
+                back_transformed: None,
                 level: level.to_string(),
                 mean,
                 se,
@@ -108,6 +109,7 @@ pub(super) fn pairwise_adjusted(
             });
             let t = ratio(difference, se);
             pairs.push(MeanPair {
+                ratio: None,
                 a: levels[i].to_string(),
                 b: levels[j].to_string(),
                 difference,

@@ -26,6 +26,7 @@ mod limits;
 mod pairwise;
 mod regions;
 mod robust;
+mod scale;
 mod sensitivity;
 
 pub use error::AnalysisError;
@@ -498,6 +499,11 @@ fn procedure(
             },
             response_units: plan.model.response_units.clone(),
             covariate_units: plan.model.covariate_units.clone(),
+            slope_reading: scale::slope_reading(
+                plan.model.response_transform,
+                plan.model.covariate_transform,
+            )
+            .into(),
         },
         data: DataAccount {
             rows_read: data.rows_read,
@@ -534,6 +540,8 @@ fn procedure(
         decision: decision::placeholder(),
         warnings: Vec::new(),
     };
+    let mut results = results;
+    scale::back_transform(plan.model.response_transform, &mut results);
     let limits_model = plan.limits.as_ref().map(|_| limit_model.as_str());
     Ok((
         decision::conclude(plan, results, warnings, limits_model),

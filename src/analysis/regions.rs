@@ -164,6 +164,7 @@ pub(super) fn differences_at(
                 let se = (v.is_finite() && v > 0.0).then(|| v.sqrt());
                 let t = se.map(|se| d / se);
                 out.push(DifferenceAt {
+                    ratio: None,
                     a: levels[i].to_string(),
                     b: levels[j].to_string(),
                     at: x,

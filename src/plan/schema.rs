@@ -419,6 +419,22 @@ impl Transform {
     }
 
     /// A column label that shows the transform, e.g. `log(height_cm)`.
+    /// For a log transform, the value back on the measured scale (exp, or 10^x);
+    /// `None` for the others, whose back-transformed means and differences have no
+    /// plain reading.
+    pub fn exp(self, v: f64) -> Option<f64> {
+        match self {
+            Transform::Log => Some(v.exp()),
+            Transform::Log10 => Some(10f64.powf(v)),
+            _ => None,
+        }
+    }
+
+    /// True for "log" and "log10".
+    pub fn is_log(self) -> bool {
+        matches!(self, Transform::Log | Transform::Log10)
+    }
+
     pub fn label(self, column: &str) -> String {
         match self {
             Transform::None => column.to_string(),

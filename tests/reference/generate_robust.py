@@ -187,6 +187,42 @@ def case(name, rows, numbers, response, covariate, group):
 MARGINS = {"penguins": 8.0, "fanning": 0.6}
 
 
+def back_transformed():
+    """Penguins on the log-log scale (natural logs), classical parallel-lines fit:
+    the adjusted means at the mean of log(flipper) and their pairwise differences from
+    statsmodels t_test, exponentiated here (geometric means, ratios)."""
+    rows, _ = penguins()
+    levels = sorted({g for g, _, _ in rows})
+    k = len(levels)
+    g = np.array([levels.index(r[0]) for r in rows])
+    x = np.log(np.array([r[1] for r in rows]))
+    y = np.log(np.array([r[2] for r in rows]))
+    n = len(rows)
+    ind = np.zeros((n, k))
+    ind[np.arange(n), g] = 1.0
+    fit = sm.OLS(y, np.hstack([ind, x[:, None]])).fit()
+    x0 = float(x.mean())
+    means, ratios = [], []
+    for a in range(k):
+        c = np.zeros(k + 1)
+        c[a], c[k] = 1.0, x0
+        t = fit.t_test(c)
+        lo, hi = t.conf_int(alpha=ALPHA)[0]
+        means.append({"level": levels[a], "mean": float(t.effect[0]),
+                      "geometric_mean": float(np.exp(t.effect[0])),
+                      "ci": [float(np.exp(lo)), float(np.exp(hi))]})
+    for a in range(k):
+        for b in range(a + 1, k):
+            c = np.zeros(k + 1)
+            c[a], c[b] = 1.0, -1.0
+            t = fit.t_test(c)
+            lo, hi = t.conf_int(alpha=ALPHA)[0]
+            ratios.append({"a": levels[a], "b": levels[b], "ratio": float(np.exp(t.effect[0])),
+                           "ci": [float(np.exp(lo)), float(np.exp(hi))]})
+    return {"adjust_at": x0, "common_slope": float(fit.params[k]), "adjusted_means": means,
+            "ratios": ratios}
+
+
 def main():
     cases = []
     for name, (rows, numbers), (resp, cov, grp) in [
@@ -198,7 +234,8 @@ def main():
             c["csv"] = "g,x,y\n" + "".join(f"{g},{x!r},{y!r}\n" for g, x, y in rows)
         cases.append(c)
     OUT.write_text(json.dumps({"generator": "tests/reference/generate_robust.py",
-                               "alpha": ALPHA, "cases": cases}, indent=1) + "\n")
+                               "alpha": ALPHA, "cases": cases,
+                               "back_transformed": back_transformed()}, indent=1) + "\n")
     print(f"wrote {OUT}")
 
 

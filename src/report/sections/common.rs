@@ -52,32 +52,55 @@ pub(super) fn section(b: &mut Builder, c: &Ctx, framing: Framing) {
         v(&c.x),
         t(format!(" = {at}")),
     ]);
+    // A log response is read back on its measured scale: geometric means.
+    let geometric = r
+        .adjusted_means
+        .iter()
+        .any(|m| m.back_transformed.is_some());
+    let mut header = vec![
+        vcell(&c.g),
+        vec![t("adjusted mean of "), v(&c.y)],
+        cell("SE"),
+        cell(format!("{} interval", c.conf)),
+    ];
+    if geometric {
+        header.push(vec![t("geometric mean of "), v(&r.model.response)]);
+        header.push(cell(format!("{} interval", c.conf)));
+    }
+    header.push(vec![t("within the group's "), v(&c.x), t(" range")]);
     b.table_aligned(
-        vec![
-            vcell(&c.g),
-            vec![t("adjusted mean of "), v(&c.y)],
-            cell("SE"),
-            cell(format!("{} interval", c.conf)),
-            vec![t("within the group's "), v(&c.x), t(" range")],
-        ],
-        aligns("lrrll"),
+        header,
+        aligns(if geometric { "lrrlrll" } else { "lrrll" }),
         r.adjusted_means
             .iter()
             .map(|m| {
-                vec![
+                let mut row = vec![
                     vcell(&m.level),
                     cell(num(Some(m.mean))),
                     cell(num(m.se)),
                     cell(ci(m.ci)),
-                    cell(if m.within_range {
-                        "yes"
-                    } else {
-                        "no: extrapolated"
-                    }),
-                ]
+                ];
+                if geometric {
+                    let bt = m.back_transformed.as_ref();
+                    row.push(cell(num(bt.map(|b| b.value))));
+                    row.push(cell(ci(bt.and_then(|b| b.ci))));
+                }
+                row.push(cell(if m.within_range {
+                    "yes"
+                } else {
+                    "no: extrapolated"
+                }));
+                row
             })
             .collect(),
     );
+    if geometric {
+        b.para(vec![
+            t("On the measured scale of "),
+            v(&r.model.response),
+            t(", each adjusted mean reads as a geometric mean and each difference below as a ratio of geometric means (first ÷ second), with the interval's ends transformed alike."),
+        ]);
+    }
 
     // The question first, then the answer column by column: whether the pair
     // differs after adjustment, the size and its interval, and the p-values from
@@ -101,23 +124,31 @@ pub(super) fn section(b: &mut Builder, c: &Ctx, framing: Framing) {
         t(")."),
     ]);
     let alpha = r.model.alpha;
+    let ratios = r.pairwise_adjusted.iter().any(|d| d.ratio.is_some());
+    let mut header = vec![
+        cell("pair"),
+        cell("differ?"),
+        cell("difference"),
+        cell(format!("{} interval", c.conf)),
+    ];
+    if ratios {
+        header.push(cell("ratio"));
+        header.push(cell(format!("{} interval", c.conf)));
+    }
+    header.extend([
+        cell(adjusted_column),
+        cell("Tukey–Kramer p"),
+        cell("p before adjustment"),
+        cell("t"),
+        cell("SE"),
+    ]);
     b.table_aligned(
-        vec![
-            cell("pair"),
-            cell("differ?"),
-            cell("difference"),
-            cell(format!("{} interval", c.conf)),
-            cell(adjusted_column),
-            cell("Tukey–Kramer p"),
-            cell("p before adjustment"),
-            cell("t"),
-            cell("SE"),
-        ],
-        aligns("llrlrrrrr"),
+        header,
+        aligns(if ratios { "llrlrlrrrrr" } else { "llrlrrrrr" }),
         r.pairwise_adjusted
             .iter()
             .map(|d| {
-                vec![
+                let mut row = vec![
                     pair(&d.a, &d.b),
                     cell(match d.p_adjusted {
                         Some(q) if q < alpha => "yes",
@@ -126,12 +157,20 @@ pub(super) fn section(b: &mut Builder, c: &Ctx, framing: Framing) {
                     }),
                     cell(num(Some(d.difference))),
                     cell(ci(d.ci)),
+                ];
+                if ratios {
+                    let q = d.ratio.as_ref();
+                    row.push(cell(num(q.map(|q| q.value))));
+                    row.push(cell(ci(q.and_then(|q| q.ci))));
+                }
+                row.extend([
                     cell(p(d.p_adjusted)),
                     cell(p(d.p_tukey)),
                     cell(p(d.p_value)),
                     cell(num(d.t)),
                     cell(num(d.se)),
-                ]
+                ]);
+                row
             })
             .collect(),
     );

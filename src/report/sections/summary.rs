@@ -184,6 +184,7 @@ fn common_slope_runs(c: &Ctx) -> Runs {
         num(Some(r.common_slope.slope))
     ))];
     runs.extend(c.slope_unit());
+    runs.extend(slope_reading(c, r.common_slope.slope));
     runs.extend([t(format!(
         " ({} interval {}), the groups' adjusted means at ",
         c.conf,
@@ -218,13 +219,26 @@ fn common_slope_runs(c: &Ctx) -> Runs {
                     t(" − "),
                     v(&l.b),
                     t(format!(
-                        " = {} ({} interval {}, adjusted {}).",
+                        " = {} ({} interval {}, adjusted {})",
                         c.y_value(l.difference),
                         c.conf,
                         ci(l.ci),
                         peq(l.p_adjusted)
                     )),
                 ]);
+                match &l.ratio {
+                    Some(q) => runs.extend([
+                        t("; on the measured scale of "),
+                        v(&r.model.response),
+                        t(format!(
+                            " the geometric means stand in the ratio {} ({} interval {}).",
+                            num(Some(q.value)),
+                            c.conf,
+                            ci(q.ci)
+                        )),
+                    ]),
+                    None => runs.push(t(".")),
+                }
             }
         }
         _ => runs.push(t(format!(
@@ -397,4 +411,33 @@ fn equivalence_counts(e: &crate::results::Equivalence) -> String {
     })
     .collect();
     parts.join(", ")
+}
+
+/// How a slope reads on the measured scale, for transformed columns: an elasticity,
+/// or a factor per covariate unit.
+fn slope_reading(c: &Ctx, slope: f64) -> Runs {
+    let r = c.r;
+    match r.model.slope_reading.as_str() {
+        "elasticity" => vec![
+            t(" (an elasticity: 1 % more "),
+            v(&r.model.covariate),
+            t(format!(" goes with about {} % more ", num(Some(slope)))),
+            v(&r.model.response),
+            t(")"),
+        ],
+        "ratio-per-unit" => {
+            let factor = match r.model.response_transform.as_str() {
+                "log10" => 10f64.powf(slope),
+                _ => slope.exp(),
+            };
+            vec![
+                t(" (each unit of "),
+                v(&r.model.covariate),
+                t(" multiplies "),
+                v(&r.model.response),
+                t(format!(" by {})", num(Some(factor)))),
+            ]
+        }
+        _ => Vec::new(),
+    }
 }
