@@ -477,7 +477,10 @@ pub fn draft_plan(
         w,
         "# Covariate values for group differences when slopes differ (default: its quartiles;",
     );
-    line(w, "# the values below are the sample's, untransformed).");
+    line(
+        w,
+        "# like every value in a plan, on the measured scale: slopewise transforms them).",
+    );
     line(
         w,
         &format!(

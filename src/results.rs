@@ -24,8 +24,12 @@ pub struct Results {
     pub data: DataAccount,
     /// Mean of the (transformed) covariate over the rows used.
     pub covariate_mean: f64,
-    /// Covariate value at which adjusted means are given.
+    /// Covariate value at which adjusted means are given (analysis scale).
     pub adjust_at: f64,
+    /// The same point on the measured scale (for a log covariate and the "mean" rule,
+    /// the geometric mean of the covariate).
+    #[serde(default)]
+    pub adjust_at_measured: f64,
     /// One entry per level, in level order: each group's own line.
     pub groups: Vec<GroupLineResult>,
     /// The separate-slopes model as a whole.
@@ -438,8 +442,11 @@ pub struct DifferenceAt {
     pub a: String,
     /// Second level.
     pub b: String,
-    /// Covariate value.
+    /// Covariate value (analysis scale).
     pub at: f64,
+    /// The same value on the measured scale.
+    #[serde(default)]
+    pub at_measured: f64,
     /// Line of a minus line of b at `at`.
     pub difference: f64,
     /// Standard error (pooled residual variance of the separate-slopes model).

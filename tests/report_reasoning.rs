@@ -490,3 +490,119 @@ fn methods_state_the_bound_and_the_two_sided_rule() {
     assert!(methods.contains("one-sided level of 97.5%"), "{methods}");
     let _ = std::fs::remove_dir_all(dir);
 }
+
+/// One rule for scales (issue 13 item 9): covariate values in a plan are on the
+/// measured scale and slopewise transforms them. With a log covariate, `adjust_at = 20`
+/// gives adjusted means at log(20): each is the group's mean response plus the common
+/// slope times (log 20 − the group's mean log covariate), from the lines in
+/// results.json (the parallel-lines fit, by hand); `compare_at = [20]` likewise. A value
+/// outside the log's domain is a plan error at its line and column.
+#[test]
+fn covariate_values_in_a_plan_are_on_the_measured_scale() {
+    let data = {
+        // Months 1..13 so that log(month) exists.
+        let mut s = String::from("lot,month,assay\n");
+        for (g, (a, b)) in [
+            ("L1", (100.0, -1.5)),
+            ("L2", (101.0, -1.0)),
+            ("L3", (99.0, -2.2)),
+        ] {
+            for (i, m) in (1..=13).enumerate() {
+                let e = [0.2, -0.3, 0.1, 0.0, -0.1, 0.25, -0.15][i % 7];
+                s.push_str(&format!("{g},{m},{:.4}\n", a + b * (m as f64).ln() + e));
+            }
+        }
+        s
+    };
+    let extra = "\n[model.transform]\ncovariate = \"log\"\n\n[tests]\ncompare_at = [20.0]\nslopes_alpha = 0.0001\n";
+    // adjust_at sits in [model]: write the plan by hand.
+    let dir =
+        std::env::temp_dir().join(format!("slopewise-reasoning-{}-scale", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    std::fs::write(dir.join("data.csv"), &data).unwrap();
+    let plan = |adjust: &str| {
+        format!(
+            "title = \"scale\"\n\n[data]\npath = \"data.csv\"\n\n[model]\nresponse = \"assay\"\ncovariate = \"month\"\ngroup = \"lot\"\nadjust_at = {adjust}\n{extra}\n[report]\nout = \"out\"\nformats = [\"json\", \"markdown\"]\n"
+        )
+    };
+    std::fs::write(dir.join("plan.toml"), plan("20.0")).unwrap();
+    let o = Command::new(bin())
+        .arg("run")
+        .arg(dir.join("plan.toml"))
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let r: Value =
+        serde_json::from_str(&std::fs::read_to_string(dir.join("out/results.json")).unwrap())
+            .unwrap();
+    let at = 20f64.ln();
+    assert!((r["adjust_at"].as_f64().unwrap() - at).abs() < 1e-15);
+    assert!((r["adjust_at_measured"].as_f64().unwrap() - 20.0).abs() < 1e-12);
+    let b = r["common_slope"]["slope"].as_f64().unwrap();
+    for (m, g) in r["adjusted_means"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .zip(r["groups"].as_array().unwrap())
+    {
+        let by_hand =
+            g["response_mean"].as_f64().unwrap() + b * (at - g["covariate_mean"].as_f64().unwrap());
+        let got = m["mean"].as_f64().unwrap();
+        assert!(
+            (got - by_hand).abs() < 1e-10 * by_hand.abs(),
+            "{got} {by_hand}"
+        );
+    }
+    let report = std::fs::read_to_string(dir.join("out/report.md")).unwrap();
+    assert!(
+        report.contains("(month = 20.00 as measured)"),
+        "measured point shown"
+    );
+
+    // Separate slopes need a rejecting gate: the same plan at the default level, where
+    // compare_at = [20] is read as log(20).
+    std::fs::write(
+        dir.join("plan.toml"),
+        plan("20.0").replace("slopes_alpha = 0.0001", "slopes_alpha = 0.9999"),
+    )
+    .unwrap();
+    let o = Command::new(bin())
+        .arg("run")
+        .arg(dir.join("plan.toml"))
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let r: Value =
+        serde_json::from_str(&std::fs::read_to_string(dir.join("out/results.json")).unwrap())
+            .unwrap();
+    assert_eq!(r["decision"]["homogeneous"], false);
+    for d in r["differences_at"].as_array().unwrap() {
+        assert!((d["at"].as_f64().unwrap() - at).abs() < 1e-15);
+        assert!((d["at_measured"].as_f64().unwrap() - 20.0).abs() < 1e-12);
+    }
+
+    // -1 months has no logarithm: a plan error at adjust_at's line and column.
+    let _ = std::fs::remove_dir_all(dir.join("out"));
+    let text = plan("-1.0");
+    std::fs::write(dir.join("plan.toml"), &text).unwrap();
+    let o = Command::new(bin())
+        .arg("run")
+        .arg(dir.join("plan.toml"))
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(!o.status.success());
+    assert!(
+        err.contains("model.adjust_at = -1 is outside the domain of the covariate's log transform"),
+        "{err}"
+    );
+    let line = text
+        .lines()
+        .position(|l| l.starts_with("adjust_at"))
+        .unwrap()
+        + 1;
+    assert!(err.contains(&format!("plan.toml:{line}:13")), "{err}");
+    assert!(!dir.join("out").exists());
+    let _ = std::fs::remove_dir_all(dir);
+}

@@ -513,6 +513,7 @@ fn procedure(
         },
         covariate_mean,
         adjust_at,
+        adjust_at_measured: plan.model.covariate_transform.inverse(adjust_at),
         groups,
         separate_slopes: ModelFit {
             rss: separate.rss,
@@ -542,6 +543,9 @@ fn procedure(
     };
     let mut results = results;
     scale::back_transform(plan.model.response_transform, &mut results);
+    for d in &mut results.differences_at {
+        d.at_measured = plan.model.covariate_transform.inverse(d.at);
+    }
     let limits_model = plan.limits.as_ref().map(|_| limit_model.as_str());
     Ok((
         decision::conclude(plan, results, warnings, limits_model),

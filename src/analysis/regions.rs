@@ -165,6 +165,7 @@ pub(super) fn differences_at(
                 let t = se.map(|se| d / se);
                 out.push(DifferenceAt {
                     ratio: None,
+                    at_measured: x,
                     a: levels[i].to_string(),
                     b: levels[j].to_string(),
                     at: x,

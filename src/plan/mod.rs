@@ -103,8 +103,11 @@ pub struct ModelSpec {
     pub group: String,
     /// Optional order of the levels; the first is the reference.
     pub levels: Option<Vec<String>>,
-    /// Covariate value at which adjusted means are given.
+    /// Covariate value at which adjusted means are given, on the analysis
+    /// (transformed) scale.
     pub adjust_at: AdjustAt,
+    /// That value as the plan wrote it, on the measured scale; `None` for "mean".
+    pub adjust_at_measured: Option<f64>,
     /// Transform applied to the response before fitting.
     pub response_transform: Transform,
     /// Transform applied to the covariate before fitting.
@@ -120,7 +123,8 @@ pub struct ModelSpec {
 pub enum AdjustAt {
     /// The mean of the (transformed) covariate over the rows used.
     Mean,
-    /// A fixed value on the transformed covariate scale.
+    /// A fixed value, on the transformed (analysis) scale once loaded; the plan
+    /// writes it on the measured scale.
     Value(f64),
 }
 
@@ -135,8 +139,9 @@ pub struct TestSpec {
     pub comparisons: Comparisons,
     /// Johnson–Neyman form when slopes differ.
     pub regions: Regions,
-    /// Covariate values at which group differences are given when slopes differ;
-    /// `None` means the quartiles of the covariate.
+    /// Covariate values at which group differences are given when slopes differ, on
+    /// the analysis scale (the plan writes them measured); `None` means the quartiles
+    /// of the covariate.
     pub compare_at: Option<Vec<f64>>,
     /// How the model for limits is chosen.
     pub procedure: Procedure,
@@ -383,7 +388,7 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                 return Err(err(
                     value.span(),
                     "model.adjust_at must be \"mean\" or a finite number".into(),
-                    "write `adjust_at = \"mean\"` or a covariate value such as `adjust_at = 25.0` (on the transformed scale)",
+                    "write `adjust_at = \"mean\"` or a covariate value such as `adjust_at = 25.0` (on the measured scale)",
                 ));
             }
         },
@@ -409,6 +414,34 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                 .as_ref()
                 .map_or(model_span.clone(), Spanned::span),
         ),
+    };
+
+    // Every covariate value a plan holds is on the measured scale; the analysis works
+    // on the transformed one (one rule for scales, issue 13).
+    let to_analysis = |v: f64, span: Range<usize>, key: &str| -> Result<f64, PlanError> {
+        covariate_transform.apply(v).ok_or_else(|| {
+            err(
+                span,
+                format!(
+                    "{key} = {v} is outside the domain of the covariate's {} transform (values in a plan are on the measured scale, and slopewise transforms them)",
+                    covariate_transform.name()
+                ),
+                match covariate_transform {
+                    Transform::Sqrt => "write a covariate value of 0 or more, as measured",
+                    _ => "write a positive covariate value, as measured",
+                },
+            )
+        })
+    };
+    let adjust_at_measured = match adjust_at {
+        AdjustAt::Value(v) => Some(v),
+        AdjustAt::Mean => None,
+    };
+    let adjust_at = match (adjust_at, &model.adjust_at) {
+        (AdjustAt::Value(v), Some(value)) => {
+            AdjustAt::Value(to_analysis(v, value.span(), "model.adjust_at")?)
+        }
+        (other, _) => other,
     };
 
     let tests = match &raw.tests {
@@ -461,10 +494,13 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                                 "list covariate values such as [10.0, 20.0], or remove the key to use the quartiles",
                             ));
                         }
+                        let mut values = Vec::new();
                         for v in list.get_ref() {
-                            covariate_value(*v.get_ref(), v.span(), "tests.compare_at", &err)?;
+                            let measured =
+                                covariate_value(*v.get_ref(), v.span(), "tests.compare_at", &err)?;
+                            values.push(to_analysis(measured, v.span(), "tests.compare_at")?);
                         }
-                        Some(list.get_ref().iter().map(|v| *v.get_ref()).collect())
+                        Some(values)
                     }
                 },
             }
@@ -656,6 +692,7 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
             group,
             levels,
             adjust_at,
+            adjust_at_measured,
             response_transform,
             covariate_transform,
             response_units: model.units.as_ref().and_then(|u| u.response.clone()),

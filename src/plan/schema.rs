@@ -430,6 +430,16 @@ impl Transform {
         }
     }
 
+    /// The value on the measured scale that the transform maps to `v`.
+    pub fn inverse(self, v: f64) -> f64 {
+        match self {
+            Transform::None => v,
+            Transform::Log => v.exp(),
+            Transform::Log10 => 10f64.powf(v),
+            Transform::Sqrt => v * v,
+        }
+    }
+
     /// True for "log" and "log10".
     pub fn is_log(self) -> bool {
         matches!(self, Transform::Log | Transform::Log10)

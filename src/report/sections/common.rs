@@ -47,11 +47,9 @@ pub(super) fn section(b: &mut Builder, c: &Ctx, framing: Framing) {
         num3(r.effect_sizes.group_effect_partial_eta2)
     ))]);
 
-    b.subsection(vec![
-        t("Adjusted means at "),
-        v(&c.x),
-        t(format!(" = {at}")),
-    ]);
+    let mut heading = vec![t("Adjusted means at "), v(&c.x), t(format!(" = {at}"))];
+    heading.extend(c.measured(r.adjust_at));
+    b.subsection(heading);
     // A log response is read back on its measured scale: geometric means.
     let geometric = r
         .adjusted_means

@@ -143,6 +143,29 @@ impl<'a> Ctx<'a> {
         with_unit(num(Some(x)), &self.x_unit)
     }
 
+    /// For a transformed covariate, the measured value of an analysis-scale point:
+    /// ` (feed_intake_kg = 243.2 as measured)`; nothing otherwise.
+    pub fn measured(&self, value: f64) -> Runs {
+        let r = self.r;
+        if r.model.covariate_transform == "none" {
+            return Vec::new();
+        }
+        let measured = match r.model.covariate_transform.as_str() {
+            "log" => value.exp(),
+            "log10" => 10f64.powf(value),
+            "sqrt" => value * value,
+            _ => return Vec::new(),
+        };
+        vec![
+            t(" ("),
+            v(&r.model.covariate),
+            t(format!(
+                " = {} as measured)",
+                with_unit(num(Some(measured)), &r.model.covariate_units)
+            )),
+        ]
+    }
+
     /// A point on the covariate: `24.00 months` with a declared unit, else
     /// `months = 24.00`, so a column named after its unit is not said twice.
     pub fn x_at(&self, text: String) -> Runs {

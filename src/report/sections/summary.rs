@@ -191,6 +191,7 @@ fn common_slope_runs(c: &Ctx) -> Runs {
         ci(r.common_slope.ci)
     ))]);
     runs.extend(c.x_at(num(Some(r.adjust_at))));
+    runs.extend(c.measured(r.adjust_at));
     runs.push(t(" "));
     let effect = format!(
         "(F = {} on {} and {} df, {})",
@@ -436,6 +437,22 @@ fn slope_reading(c: &Ctx, slope: f64) -> Runs {
                 t(" multiplies "),
                 v(&r.model.response),
                 t(format!(" by {})", num(Some(factor)))),
+            ]
+        }
+        "per-log-unit" => {
+            let step = match r.model.covariate_transform.as_str() {
+                "log10" => 1.01f64.log10(),
+                _ => 1.01f64.ln(),
+            };
+            vec![
+                t(" (1 % more "),
+                v(&r.model.covariate),
+                t(format!(
+                    " goes with about {} more ",
+                    num(Some(slope * step))
+                )),
+                v(&r.model.response),
+                t(")"),
             ]
         }
         _ => Vec::new(),
