@@ -34,11 +34,20 @@ pub(super) fn difference_at(r: &Results, region: &Region, x: f64) -> Option<(f64
     Some((d, half))
 }
 
+/// The covariate range both groups of the pair cover: from the larger of their
+/// smallest values to the smaller of their largest. Outside it the difference rests
+/// on one group's line extended beyond its data; `None` when they share no range.
+pub(super) fn shared_range(r: &Results, region: &Region) -> Option<(f64, f64)> {
+    let a = r.groups.iter().find(|g| g.level == region.a)?;
+    let b = r.groups.iter().find(|g| g.level == region.b)?;
+    let lo = a.covariate_min.max(b.covariate_min);
+    let hi = a.covariate_max.min(b.covariate_max);
+    (lo.is_finite() && hi.is_finite() && hi > lo).then_some((lo, hi))
+}
+
+/// The difference drawn over the pair's shared range only.
 pub(super) fn difference_curve(r: &Results, region: &Region) -> Option<Curve> {
-    let [lo, hi] = region.observed_range;
-    if !(lo.is_finite() && hi.is_finite() && hi > lo) {
-        return None;
-    }
+    let (lo, hi) = shared_range(r, region)?;
     difference_at(r, region, lo)?;
     Some(curve(lo, hi, |x| {
         difference_at(r, region, x).unwrap_or((f64::NAN, None))
@@ -54,7 +63,7 @@ pub(super) fn difference(ctx: &Context) -> Result<Figure, String> {
         .take(MAX_PAIRS)
         .collect();
     if shown.is_empty() {
-        return Err("no pair of groups has a covariate range to draw the difference over".into());
+        return Err("no pair of groups shares a covariate range to draw the difference over".into());
     }
     let n = shown.len();
     let cols = if n == 1 { 1 } else { 2 };
@@ -64,7 +73,9 @@ pub(super) fn difference(ctx: &Context) -> Result<Figure, String> {
     } else {
         (FULL_WIDTH, 330)
     };
-    let inside = |r: &Region, b: f64| b > r.observed_range[0] && b < r.observed_range[1];
+    let inside = |g: &Region, b: f64| {
+        shared_range(r, g).is_some_and(|(lo, hi)| b > lo && b < hi)
+    };
     let any_bound = shown
         .iter()
         .any(|(g, _)| g.bounds.iter().any(|b| inside(g, *b)));
@@ -84,6 +95,15 @@ pub(super) fn difference(ctx: &Context) -> Result<Figure, String> {
     }
     if any_shade {
         items.push(LegendItem::new("groups differ", Swatch::Fill(SHADE, 1.0)));
+    }
+    let any_outside = shown.iter().any(|(g, _)| {
+        shared_range(r, g).is_some_and(|(lo, hi)| lo > g.observed_range[0] || hi < g.observed_range[1])
+    });
+    if any_outside {
+        items.push(LegendItem::new(
+            "beyond the range both groups cover",
+            Swatch::Fill(OUTSIDE, 1.0),
+        ));
     }
     if any_bound {
         items.push(LegendItem::new(
@@ -125,14 +145,23 @@ pub(super) fn difference(ctx: &Context) -> Result<Figure, String> {
                 y_title: &y_title,
                 title: &title,
             };
-            // Shading goes under the grid, so the grid still reads through it.
+            let shared = shared_range(r, region).unwrap_or(observed);
+            // Shading goes under the grid, so the grid still reads through it: where
+            // the groups differ (within the shared range), and grey where the pair's
+            // comparison would extend a line beyond one group's data.
             let shade = |frame: &Frame| {
                 let mut under = String::new();
                 for s in &region.significant {
-                    let (a, b) = (s[0].max(observed.0), s[1].min(observed.1));
+                    let (a, b) = (s[0].max(shared.0), s[1].min(shared.1));
                     if b > a {
                         rect(&mut under, frame, (a, yr.0), (b, yr.1), SHADE, 1.0);
                     }
+                }
+                if shared.0 > xr.0 {
+                    rect(&mut under, frame, (xr.0, yr.0), (shared.0, yr.1), OUTSIDE, 1.0);
+                }
+                if shared.1 < xr.1 {
+                    rect(&mut under, frame, (shared.1, yr.0), (xr.1, yr.1), OUTSIDE, 1.0);
                 }
                 under
             };
@@ -148,7 +177,7 @@ pub(super) fn difference(ctx: &Context) -> Result<Figure, String> {
                 &Stroke::new(REFERENCE, 1.4, ""),
             );
             for &bound in &region.bounds {
-                if bound > observed.0 && bound < observed.1 {
+                if bound > shared.0 && bound < shared.1 {
                     polyline(
                         &mut layer,
                         &frame,
@@ -176,15 +205,19 @@ pub(super) fn difference(ctx: &Context) -> Result<Figure, String> {
         "pointwise"
     };
     let mut caption = format!(
-        "Difference between two groups' own lines along the covariate, drawn over the observed range with its {kind} {level}% band \
-         (from the separate-slopes model's pooled residual variance). Shaded: where the groups differ (Johnson–Neyman); \
-         dashed lines: the bounds that fall inside the data."
+        "Difference between two groups' own lines along the covariate, drawn only over the range both groups cover, with its {kind} {level}% band \
+         (from the separate-slopes model's pooled residual variance); grey: beyond that range, where the difference would extend a line past one group's data. \
+         Shaded: where the groups differ (Johnson–Neyman); dashed lines: the bounds that fall inside the shared range."
     );
     for (region, _) in &shown {
+        let shared = shared_range(r, region).unwrap_or((f64::NAN, f64::NAN));
         let stretches: Vec<String> = region
             .significant
             .iter()
-            .map(|s| format!("{} to {}", number::sig(s[0], 4), number::sig(s[1], 4)))
+            .filter_map(|s| {
+                let (a, b) = (s[0].max(shared.0), s[1].min(shared.1));
+                (b > a).then(|| format!("{} to {}", number::sig(a, 4), number::sig(b, 4)))
+            })
             .collect();
         let _ = write!(
             caption,
@@ -198,7 +231,20 @@ pub(super) fn difference(ctx: &Context) -> Result<Figure, String> {
             }
         );
     }
-    if r.regions.len() > shown.len() {
+    let unshared: Vec<String> = r
+        .regions
+        .iter()
+        .filter(|g| shared_range(r, g).is_none())
+        .map(|g| format!("{} − {}", shown_label(&g.a), shown_label(&g.b)))
+        .collect();
+    if !unshared.is_empty() {
+        let _ = write!(
+            caption,
+            " Not drawn, because the two groups share no covariate range: {}.",
+            unshared.join(", ")
+        );
+    }
+    if r.regions.len() > shown.len() + unshared.len() {
         let _ = write!(
             caption,
             " The first {} of {} pairs are drawn; results.json lists every pair.",

@@ -62,6 +62,8 @@ pub(super) const GRID: RGBColor = RGBColor(0xE8, 0xE8, 0xE8);
 pub(super) const REFERENCE: &str = "#7A7A7A";
 /// Shading of the covariate stretches where two groups differ.
 pub(super) const SHADE: &str = "#FAEFDA";
+/// Where a pair's comparison leaves the range both groups cover: a neutral grey.
+pub(super) const OUTSIDE: &str = "#EDEDED";
 
 /// Tick labels asked of plotters per axis.
 pub(super) const X_TICKS: usize = 7;

@@ -398,6 +398,34 @@ mod tests {
     }
 
     #[test]
+    fn a_pairs_difference_is_drawn_over_the_range_both_groups_cover() {
+        // Invented: group a covers x 0..10, group b 4..14, slopes 1 and 2 (issue 13:
+        // the difference curve of a pair spans only the range the two share).
+        let mut csv = String::from("g,x,y\n");
+        for i in 0..11 {
+            let e = [0.2, -0.1, 0.05, -0.2, 0.1][i % 5];
+            csv.push_str(&format!("a,{i},{}\n", 1.0 + i as f64 + e));
+            csv.push_str(&format!("b,{},{}\n", i + 4, 2.0 * (i + 4) as f64 - e));
+        }
+        let plan = "title = \"t\"\n[data]\npath = \"d.csv\"\n[model]\nresponse = \"y\"\ncovariate = \"x\"\ngroup = \"g\"\n";
+        let plan = crate::plan::load("p.toml", plan).unwrap();
+        let data = crate::data::load(&plan, csv.as_bytes()).unwrap();
+        let r = crate::analysis::run(&plan, &data, Provenance::default()).unwrap();
+        assert!(!r.decision.homogeneous);
+        let region = &r.regions[0];
+        assert_eq!(region.observed_range, [0.0, 14.0]);
+        assert_eq!(shared_range(&r, region), Some((4.0, 10.0)));
+        let c = difference_curve(&r, region).unwrap();
+        assert_eq!(c.first().unwrap().0, 4.0);
+        assert_eq!(c.last().unwrap().0, 10.0);
+        let points = crate::analysis::figure_points(&data, &r);
+        let figs = render(&r, &points).unwrap();
+        let diff = figs.iter().find(|f| f.file == "figures/difference.svg").unwrap();
+        assert!(diff.svg.contains(OUTSIDE), "the part outside is shaded grey");
+        assert!(diff.caption.contains("drawn only over the range both groups cover"));
+    }
+
+    #[test]
     fn text_helpers() {
         // Common practice, no source: digit grouping and tick labels.
         assert_eq!(thousands(0), "0");
