@@ -63,7 +63,9 @@ pub(super) fn difference(ctx: &Context) -> Result<Figure, String> {
         .take(MAX_PAIRS)
         .collect();
     if shown.is_empty() {
-        return Err("no pair of groups shares a covariate range to draw the difference over".into());
+        return Err(
+            "no pair of groups shares a covariate range to draw the difference over".into(),
+        );
     }
     let n = shown.len();
     let cols = if n == 1 { 1 } else { 2 };
@@ -73,9 +75,7 @@ pub(super) fn difference(ctx: &Context) -> Result<Figure, String> {
     } else {
         (FULL_WIDTH, 330)
     };
-    let inside = |g: &Region, b: f64| {
-        shared_range(r, g).is_some_and(|(lo, hi)| b > lo && b < hi)
-    };
+    let inside = |g: &Region, b: f64| shared_range(r, g).is_some_and(|(lo, hi)| b > lo && b < hi);
     let any_bound = shown
         .iter()
         .any(|(g, _)| g.bounds.iter().any(|b| inside(g, *b)));
@@ -97,7 +97,8 @@ pub(super) fn difference(ctx: &Context) -> Result<Figure, String> {
         items.push(LegendItem::new("groups differ", Swatch::Fill(SHADE, 1.0)));
     }
     let any_outside = shown.iter().any(|(g, _)| {
-        shared_range(r, g).is_some_and(|(lo, hi)| lo > g.observed_range[0] || hi < g.observed_range[1])
+        shared_range(r, g)
+            .is_some_and(|(lo, hi)| lo > g.observed_range[0] || hi < g.observed_range[1])
     });
     if any_outside {
         items.push(LegendItem::new(
@@ -158,10 +159,24 @@ pub(super) fn difference(ctx: &Context) -> Result<Figure, String> {
                     }
                 }
                 if shared.0 > xr.0 {
-                    rect(&mut under, frame, (xr.0, yr.0), (shared.0, yr.1), OUTSIDE, 1.0);
+                    rect(
+                        &mut under,
+                        frame,
+                        (xr.0, yr.0),
+                        (shared.0, yr.1),
+                        OUTSIDE,
+                        1.0,
+                    );
                 }
                 if shared.1 < xr.1 {
-                    rect(&mut under, frame, (shared.1, yr.0), (xr.1, yr.1), OUTSIDE, 1.0);
+                    rect(
+                        &mut under,
+                        frame,
+                        (shared.1, yr.0),
+                        (xr.1, yr.1),
+                        OUTSIDE,
+                        1.0,
+                    );
                 }
                 under
             };

@@ -85,6 +85,18 @@ pub(super) fn limits(ctx: &Context) -> Result<Figure, String> {
                 .max(c.observed_max)
         })
         .fold(f64::NEG_INFINITY, f64::max);
+    // The last observation, the extrapolation cap and the supported period are
+    // marked, so the figure shows how far beyond the data a crossing lies.
+    let last = entries
+        .iter()
+        .map(|c| c.observed_max)
+        .fold(f64::NEG_INFINITY, f64::max);
+    let supported = r.limits_supported.as_ref();
+    let cap = supported.and_then(|s| s.cap).filter(|c| c.is_finite());
+    let period = supported
+        .and_then(|s| s.supported)
+        .filter(|p| p.is_finite());
+    let reach = reach.max(cap.unwrap_or(reach)).max(period.unwrap_or(reach));
     let hi = reach + 0.05 * (reach - lo).max(1e-9);
     let mut xs = Extent::default();
     let mut ys = Extent::default();
@@ -151,6 +163,50 @@ pub(super) fn limits(ctx: &Context) -> Result<Figure, String> {
         "limit",
         Swatch::Line(Stroke::new(REFERENCE, 1.6, "8 4")),
     ));
+    items.push(LegendItem::new(
+        "last observation",
+        Swatch::Line(Stroke::new(INK_HEX, 1.2, "1 3")),
+    ));
+    let crossed: Vec<(f64, f64, usize, bool)> = r
+        .limits
+        .iter()
+        .filter_map(|c| {
+            let color = r
+                .groups
+                .iter()
+                .position(|g| g.level == c.level)
+                .unwrap_or(0);
+            match (c.crossing, c.reason.as_deref()) {
+                (Some(x), _) => Some((x, c.limit, color, false)),
+                (None, Some("beyond-at-start")) => Some((c.observed_min, c.limit, color, true)),
+                _ => None,
+            }
+        })
+        .collect();
+    if crossed.iter().any(|c| !c.3) {
+        items.push(LegendItem::new(
+            "crossing",
+            Swatch::Line(Stroke::new(INK_HEX, 2.4, "")),
+        ));
+    }
+    if crossed.iter().any(|c| c.3) {
+        items.push(LegendItem::new(
+            "past the limit at the first observation",
+            Swatch::Line(Stroke::new(INK_HEX, 2.4, "3 2")),
+        ));
+    }
+    if cap.is_some() {
+        items.push(LegendItem::new(
+            "extrapolation cap",
+            Swatch::Line(Stroke::new(REFERENCE, 1.6, "2 2")),
+        ));
+    }
+    if period.is_some() {
+        items.push(LegendItem::new(
+            "supported period",
+            Swatch::Line(Stroke::new(INK_HEX, 1.8, "")),
+        ));
+    }
     let width = 640;
     let panel_h = 420;
     let legend = Legend::layout(&items, width as f64 - 40.0);
@@ -207,6 +263,32 @@ pub(super) fn limits(ctx: &Context) -> Result<Figure, String> {
                 }
             }
         }
+        let vertical = |layer: &mut String, x: f64, stroke: Stroke| {
+            polyline(layer, &frame, &[(x, yr.0), (x, yr.1)], &stroke);
+        };
+        vertical(&mut layer, last, Stroke::new(INK_HEX, 1.2, "1 3"));
+        if let Some(c) = cap {
+            vertical(&mut layer, c, Stroke::new(REFERENCE, 1.6, "2 2"));
+        }
+        if let Some(p) = period {
+            vertical(&mut layer, p, Stroke::new(INK_HEX, 1.8, ""));
+        }
+        // Each crossing: a short upright tick through the limit, in the line's colour
+        // (dashed when the line was past the limit from its first observation).
+        let tick = (yr.1 - yr.0) * 0.04;
+        for &(x, y, color, already) in &crossed {
+            let colour = if model == "pooled" {
+                PALETTE[0]
+            } else {
+                PALETTE[color % PALETTE.len()]
+            };
+            polyline(
+                &mut layer,
+                &frame,
+                &[(x, y - tick), (x, y + tick)],
+                &Stroke::new(colour, 2.4, if already { "3 2" } else { "" }),
+            );
+        }
         place(&top, layers, layer)?;
         let mut overlay = String::new();
         legend.draw(&bottom, &mut overlay, &items)?;
@@ -220,8 +302,39 @@ pub(super) fn limits(ctx: &Context) -> Result<Figure, String> {
                 .map(|x| format!("{} {}: {}", c.level, c.side, number::sig(x, 4)))
         })
         .collect();
+    let mut marks = format!(
+        " Dotted upright: the last observation ({}).",
+        number::sig(last, 4)
+    );
+    if let Some(c) = cap {
+        let _ = write!(
+            marks,
+            " Fine dashes: the extrapolation cap ({}).",
+            number::sig(c, 4)
+        );
+    }
+    if let Some(p) = period {
+        let _ = write!(
+            marks,
+            " Solid upright: the supported period ({}).",
+            number::trimmed(p, 4)
+        );
+    }
+    let already: Vec<String> = r
+        .limits
+        .iter()
+        .filter(|c| c.reason.as_deref() == Some("beyond-at-start"))
+        .map(|c| format!("{} ({})", c.level, c.side))
+        .collect();
+    if !already.is_empty() {
+        let _ = write!(
+            marks,
+            " Past the limit at the first observation: {}.",
+            already.join(", ")
+        );
+    }
     let caption = format!(
-        "Each line the crossings are read from ({}), its one-sided {level}% {}, and the limits (dashed). Crossings: {}. {}",
+        "Each line the crossings are read from ({}), its one-sided {level}% {}, and the limits (dashed); ticks on a limit mark the crossings. Crossings: {}.{marks} {}",
         match model {
             "pooled" => "the pooled line",
             "common-slope" => "parallel lines",

@@ -420,9 +420,88 @@ mod tests {
         assert_eq!(c.last().unwrap().0, 10.0);
         let points = crate::analysis::figure_points(&data, &r);
         let figs = render(&r, &points).unwrap();
-        let diff = figs.iter().find(|f| f.file == "figures/difference.svg").unwrap();
-        assert!(diff.svg.contains(OUTSIDE), "the part outside is shaded grey");
-        assert!(diff.caption.contains("drawn only over the range both groups cover"));
+        let diff = figs
+            .iter()
+            .find(|f| f.file == "figures/difference.svg")
+            .unwrap();
+        assert!(
+            diff.svg.contains(OUTSIDE),
+            "the part outside is shaded grey"
+        );
+        assert!(
+            diff.caption
+                .contains("drawn only over the range both groups cover")
+        );
+    }
+
+    #[test]
+    fn the_limits_figure_marks_the_data_end_crossings_and_the_cap() {
+        // The invented reference lots of generate_limits.py (case limits_violated_first):
+        // one lot is below the lower limit from its first observation. With
+        // room-temperature storage the cap and the supported period are drawn too.
+        let csv = include_str!("../../../tests/reference/data/limits_violated_first.csv");
+        let plan = "title = \"p\"\n[data]\npath = \"d.csv\"\n[model]\nresponse = \"assay_pct\"\ncovariate = \"months\"\ngroup = \"lot\"\n[limits]\nlower = 95.0\n";
+        let plan = crate::plan::load("p.toml", plan).unwrap();
+        let data = crate::data::load(&plan, csv.as_bytes()).unwrap();
+        let r = crate::analysis::run(&plan, &data, Provenance::default()).unwrap();
+        let points = crate::analysis::figure_points(&data, &r);
+        let figs = render(&r, &points).unwrap();
+        let fig = figs
+            .iter()
+            .find(|f| f.file == "figures/limits.svg")
+            .unwrap();
+        let last = r
+            .limits
+            .iter()
+            .map(|l| l.observed_max)
+            .fold(f64::MIN, f64::max);
+        assert!(
+            fig.caption
+                .contains(&format!("the last observation ({})", number::sig(last, 4))),
+            "{}",
+            fig.caption
+        );
+        let already: Vec<&str> = r
+            .limits
+            .iter()
+            .filter(|l| l.reason.as_deref() == Some("beyond-at-start"))
+            .map(|l| l.level.as_str())
+            .collect();
+        assert!(
+            !already.is_empty(),
+            "the case has a lot past the limit at the start"
+        );
+        assert!(
+            fig.caption
+                .contains("Past the limit at the first observation")
+        );
+        assert!(
+            fig.svg.contains("stroke-dasharray=\"1 3\""),
+            "the last-observation rule"
+        );
+
+        let plan = "title = \"p\"\n[data]\npath = \"d.csv\"\n[model]\nresponse = \"assay_pct\"\ncovariate = \"months\"\ngroup = \"lot\"\n[limits]\nlower = 90.0\nstorage = \"room\"\n";
+        let plan = crate::plan::load("p.toml", plan).unwrap();
+        let r = crate::analysis::run(&plan, &data, Provenance::default()).unwrap();
+        let figs = render(&r, &crate::analysis::figure_points(&data, &r)).unwrap();
+        let fig = figs
+            .iter()
+            .find(|f| f.file == "figures/limits.svg")
+            .unwrap();
+        let s = r.limits_supported.as_ref().unwrap();
+        if let Some(cap) = s.cap {
+            assert!(
+                fig.caption
+                    .contains(&format!("the extrapolation cap ({})", number::sig(cap, 4)))
+            );
+        }
+        if let Some(p) = s.supported {
+            assert!(
+                fig.caption
+                    .contains(&format!("the supported period ({})", number::trimmed(p, 4)))
+            );
+        }
+        assert!(s.cap.is_some() || s.supported.is_some(), "{s:?}");
     }
 
     #[test]
