@@ -55,9 +55,13 @@ pub(super) fn section(b: &mut Builder, c: &Ctx, framing: Framing) {
         .adjusted_means
         .iter()
         .any(|m| m.back_transformed.is_some());
+    let unit = c
+        .y_unit
+        .as_ref()
+        .map_or(String::new(), |u| format!(" ({u})"));
     let mut header = vec![
         vcell(&c.g),
-        vec![t("adjusted mean of "), v(&c.y)],
+        vec![t("adjusted mean of "), v(&c.y), t(unit.clone())],
         cell("SE"),
         cell(format!("{} interval", c.conf)),
     ];
@@ -126,7 +130,7 @@ pub(super) fn section(b: &mut Builder, c: &Ctx, framing: Framing) {
     let mut header = vec![
         cell("pair"),
         cell("differ?"),
-        cell("difference"),
+        cell(format!("difference{unit}")),
         cell(format!("{} interval", c.conf)),
     ];
     if ratios {

@@ -13,10 +13,14 @@ pub(super) fn subsection(b: &mut Builder, c: &Ctx) {
         c.adjust
     ))]);
     let interval = format!("{} interval", c.conf);
+    let difference = match (&c.y_unit, &c.x_unit) {
+        (Some(yu), Some(xu)) => format!("difference ({yu} per {xu})"),
+        _ => "difference".to_string(),
+    };
     b.table_aligned(
         [
             "pair",
-            "difference",
+            difference.as_str(),
             interval.as_str(),
             "SE",
             "t",
