@@ -89,9 +89,13 @@ pub enum Command {
         /// Also write the comparison as Markdown to this file.
         #[arg(long, value_name = "FILE")]
         markdown: Option<PathBuf>,
-        /// With three or more runs, also write the trend figure (SVG) to this file.
+        /// Also write the figure of each group's slope over the runs (SVG) to this file.
         #[arg(long, value_name = "FILE")]
         figure: Option<PathBuf>,
+        /// Compare runs whose response, covariate, group column, transforms or units
+        /// differ (refused otherwise); no change between them is then tested.
+        #[arg(long)]
+        allow_mismatch: bool,
         /// Level for the tests of change.
         #[arg(long, default_value_t = 0.05)]
         alpha: f64,

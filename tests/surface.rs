@@ -680,3 +680,107 @@ fn serde_integer_widths_never_reach_a_plan_error() {
     );
     assert!(!err.contains("i128"), "{err}");
 }
+
+// ---- diff: different measures, two-run figures, figure failures -----------------
+
+/// Two runs of one plan and one run of a plan on another response.
+fn diff_runs(name: &str) -> PathBuf {
+    let dir = setup(name);
+    assert!(
+        slopewise(&dir, &["run", "plan.toml", "--out", "a"])
+            .status
+            .success()
+    );
+    assert!(
+        slopewise(&dir, &["run", "plan.toml", "--out", "b"])
+            .status
+            .success()
+    );
+    let other = unindent(BASE_PLAN)
+        .replace("response = \"mass_g\"", "response = \"length_cm\"")
+        .replace("covariate = \"length_cm\"", "covariate = \"mass_g\"");
+    fs::write(dir.join("other.toml"), other).unwrap();
+    assert!(
+        slopewise(&dir, &["run", "other.toml", "--out", "c"])
+            .status
+            .success()
+    );
+    dir
+}
+
+#[test]
+fn diff_of_runs_that_measure_different_things_is_refused_or_untested() {
+    // Defect: diff between runs of different responses flagged "significant" changes.
+    let dir = diff_runs("diff-mismatch");
+    let o = slopewise(&dir, &["diff", "a", "c"]);
+    assert!(!o.status.success());
+    let err = stderr(&o);
+    assert!(
+        err.contains("measure different things: the response (mass_g before, length_cm now)"),
+        "{err}"
+    );
+    assert!(err.contains("--allow-mismatch"), "{err}");
+    assert!(o.stdout.is_empty(), "nothing printed before the refusal");
+    let o = slopewise(
+        &dir,
+        &["diff", "a", "c", "--allow-mismatch", "--fail-on-change"],
+    );
+    let out = String::from_utf8_lossy(&o.stdout);
+    assert!(out.starts_with("Warning: these runs measure different things"), "{out}");
+    assert!(out.contains("Nothing flagged"), "{out}");
+    assert!(!out.to_lowercase().contains("significant change"), "{out}");
+    // Nothing is tested, so no slope change can fail the run.
+    assert!(
+        !stderr(&o).contains("a change is significant"),
+        "{}",
+        stderr(&o)
+    );
+    let _ = fs::remove_dir_all(dir);
+}
+
+#[test]
+fn diff_figure_from_two_runs_and_a_failing_figure_keep_the_markdown() {
+    // Defect: `diff --figure` with two runs failed and then wrote no Markdown either.
+    let dir = diff_runs("diff-figure");
+    let o = slopewise(
+        &dir,
+        &[
+            "diff",
+            "a",
+            "b",
+            "--figure",
+            "trend.svg",
+            "--markdown",
+            "diff.md",
+        ],
+    );
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(
+        fs::read_to_string(dir.join("trend.svg"))
+            .unwrap()
+            .starts_with("<svg")
+    );
+    assert!(
+        fs::read_to_string(dir.join("diff.md"))
+            .unwrap()
+            .contains("Changes between two runs")
+    );
+    // A figure that cannot be written (its folder does not exist) is a warning; the
+    // Markdown is still written.
+    let o = slopewise(
+        &dir,
+        &[
+            "diff",
+            "a",
+            "b",
+            "--figure",
+            "no/such/folder/trend.svg",
+            "--markdown",
+            "diff2.md",
+        ],
+    );
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(stderr(&o).starts_with("warning: "), "{}", stderr(&o));
+    assert!(dir.join("diff2.md").exists());
+    let _ = fs::remove_dir_all(dir);
+}

@@ -1,5 +1,6 @@
 //! `slopewise diff`: what changed between runs.
 
+use std::io::Write;
 use std::path::{Path, PathBuf};
 
 use super::files::write_new_file;
@@ -7,12 +8,18 @@ use super::say;
 use crate::diagnostic::Diagnostic;
 
 /// `slopewise diff`: what changed between runs.
+///
+/// Runs that measure different things (another response, covariate, group column,
+/// transform or unit) are refused unless `allow_mismatch`, and then no change is
+/// tested. The comparison (and its Markdown) is written before any figure, and a
+/// figure that cannot be drawn is a warning: it never costs the user the text.
 pub(super) fn diff(
     paths: &[PathBuf],
     markdown: Option<&Path>,
     figure: Option<&Path>,
     alpha: f64,
     fail_on_change: bool,
+    allow_mismatch: bool,
 ) -> Result<(), Diagnostic> {
     if !(alpha > 0.0 && alpha < 1.0) {
         return Err(Diagnostic::new(format!(
@@ -24,31 +31,62 @@ pub(super) fn diff(
         .map(|p| load_run(p))
         .collect::<Result<Vec<_>, _>>()?;
     let n = runs.len();
-    let comparison = crate::seasons::compare(&runs[n - 2], &runs[n - 1], alpha);
+    for pair in runs.windows(2) {
+        let mismatched = crate::seasons::mismatches(&pair[0].results, &pair[1].results);
+        if !mismatched.is_empty() && !allow_mismatch {
+            return Err(Diagnostic::new(format!(
+                "{} and {} measure different things: {}",
+                pair[0].label,
+                pair[1].label,
+                mismatched.join("; ")
+            ))
+            .help("compare runs of the same plan over seasons; to set them side by side anyway, add --allow-mismatch (no change is then tested)"));
+        }
+    }
+    let mut comparison = crate::seasons::compare(&runs[n - 2], &runs[n - 1], alpha);
+    let mismatched = crate::seasons::mismatches(&runs[n - 2].results, &runs[n - 1].results);
+    comparison.untest_for(&mismatched);
     let mut text = String::new();
     let mut md = String::new();
+    if !mismatched.is_empty() {
+        // Said before anything else: every number below compares different things.
+        let warning = format!(
+            "Warning: these runs measure different things ({}). They are set side by side as asked (--allow-mismatch); no change between them is tested.\n\n",
+            mismatched.join("; ")
+        );
+        text.push_str(&warning);
+        md.push_str(&format!("> {}", crate::report::escape_markdown(&warning)));
+    }
+    let trend = crate::seasons::trend(&runs, alpha);
     if n > 2 {
-        let trend = crate::seasons::trend(&runs, alpha);
         text.push_str(&crate::report::seasons::trend_text(&trend));
         text.push('\n');
         md.push_str(&crate::report::seasons::trend_markdown(&trend));
         md.push('\n');
-        if let Some(path) = figure {
-            let svg = crate::report::figures::trend_svg(&trend).map_err(|e| {
-                Diagnostic::new(format!("the trend figure could not be drawn: {e}"))
-            })?;
-            write_new_file(path, svg.as_bytes())?;
-        }
-    } else if figure.is_some() {
-        return Err(Diagnostic::new(
-            "--figure draws a trend, which needs three or more runs",
-        ));
     }
     text.push_str(&crate::report::seasons::comparison_text(&comparison));
     md.push_str(&crate::report::seasons::comparison_markdown(&comparison));
     say(&text);
     if let Some(path) = markdown {
         write_new_file(path, md.as_bytes())?;
+    }
+    if let Some(path) = figure {
+        // Two runs draw as well as many: each group's slope at each run.
+        let drawn = crate::report::figures::trend_svg(&trend)
+            .map_err(|e| Diagnostic::new(format!("the figure could not be drawn: {e}")))
+            .and_then(|svg| write_new_file(path, svg.as_bytes()));
+        if let Err(d) = drawn {
+            let _ = writeln!(
+                std::io::stderr(),
+                "warning: {} (the comparison above{} is complete)",
+                d.message,
+                if markdown.is_some() {
+                    " and its Markdown"
+                } else {
+                    ""
+                }
+            );
+        }
     }
     if fail_on_change && comparison.flagged() {
         return Err(Diagnostic::new(

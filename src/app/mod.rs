@@ -60,12 +60,14 @@ pub fn main() -> ExitCode {
             figure,
             alpha,
             fail_on_change,
+            allow_mismatch,
         } => diff::diff(
             &runs,
             markdown.as_deref(),
             figure.as_deref(),
             alpha,
             fail_on_change,
+            allow_mismatch,
         ),
         Command::Init { data, out } => init::init(&data, out.as_deref()),
         Command::Schema => {

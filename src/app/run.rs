@@ -117,16 +117,30 @@ pub(super) fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
 
 /// Renders every output the plan asks for, plus the plan copy.
 pub(super) fn render(lp: &LoadedPlan, a: &Analysed) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
-    let results = &a.results;
     let formats = &lp.plan.report.formats;
     let wants = |f: Format| formats.contains(&f);
     let mut files = vec![(audit::PLAN_COPY.to_string(), lp.bytes.clone())];
     let mut figure_refs = Vec::new();
+    let mut figures = Vec::new();
+    // A figure that cannot be drawn never costs the user the report: the run goes
+    // on without figures, and the results and the report say why.
+    let mut with_warning = None;
     if wants(Format::Markdown) || wants(Format::Pdf) {
-        let points = analysis::figure_points(&a.dataset, results);
-        for fig in report::figures::render(results, &points)
-            .map_err(|e| Diagnostic::new(format!("the figures could not be drawn: {e}")))?
-        {
+        let points = analysis::figure_points(&a.dataset, &a.results);
+        match report::figures::render(&a.results, &points) {
+            Ok(drawn) => figures = drawn,
+            Err(e) => {
+                let mut r = a.results.clone();
+                r.warnings.push(format!(
+                    "The figures could not be drawn ({e}), so this report has none; every number is unaffected."
+                ));
+                with_warning = Some(r);
+            }
+        }
+    }
+    let results = with_warning.as_ref().unwrap_or(&a.results);
+    {
+        for fig in figures {
             figure_refs.push(report::FigureRef {
                 file: fig.file.clone(),
                 title: fig.title.clone(),
