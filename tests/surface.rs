@@ -726,7 +726,10 @@ fn diff_of_runs_that_measure_different_things_is_refused_or_untested() {
         &["diff", "a", "c", "--allow-mismatch", "--fail-on-change"],
     );
     let out = String::from_utf8_lossy(&o.stdout);
-    assert!(out.starts_with("Warning: these runs measure different things"), "{out}");
+    assert!(
+        out.starts_with("Warning: these runs measure different things"),
+        "{out}"
+    );
     assert!(out.contains("Nothing flagged"), "{out}");
     assert!(!out.to_lowercase().contains("significant change"), "{out}");
     // Nothing is tested, so no slope change can fail the run.
@@ -782,5 +785,26 @@ fn diff_figure_from_two_runs_and_a_failing_figure_keep_the_markdown() {
     assert!(o.status.success(), "{}", stderr(&o));
     assert!(stderr(&o).starts_with("warning: "), "{}", stderr(&o));
     assert!(dir.join("diff2.md").exists());
+    let _ = fs::remove_dir_all(dir);
+}
+
+#[test]
+fn an_unterminated_quote_is_named_where_it_opens() {
+    // Defect: an unterminated quote was reported as a ragged last row ("has 1 field").
+    let dir = setup("unclosed-quote");
+    fs::write(
+        dir.join("data.csv"),
+        "plot,length_cm,mass_g\nnorth,4.0,1.12\nnorth,5.5,1.58\n\"north,7.0,2.05\nnorth,8.5,2.41\nsouth,3.5,0.82\n",
+    )
+    .unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    let err = stderr(&o);
+    assert!(
+        err.contains("data row 3 (file line 4), field 1: a quoted field opens here and is never closed; it runs on over 3 lines"),
+        "{err}"
+    );
+    assert!(!err.contains("but the header has"), "{err}");
+    assert!(!dir.join("out").exists());
     let _ = fs::remove_dir_all(dir);
 }

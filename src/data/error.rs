@@ -103,6 +103,21 @@ pub enum DataError {
         /// Fields in this row.
         found: usize,
     },
+    /// A quoted field that opens and never closes: the reader runs it on over the
+    /// following lines, so the row looks short.
+    #[error(
+        "data row {row} (file line {line}), field {field}: a quoted field opens here and is never closed; it runs on over {lines} lines"
+    )]
+    UnclosedQuote {
+        /// Data row.
+        row: u64,
+        /// File line where the field opens.
+        line: u64,
+        /// 1-based field number.
+        field: usize,
+        /// File lines the field swallowed.
+        lines: usize,
+    },
     /// Bytes that are not UTF-8 text.
     #[error("{at} is not valid UTF-8 text")]
     NotUtf8 {
@@ -255,6 +270,17 @@ impl DataError {
                 expected,
                 found,
             },
+            DataError::UnclosedQuote {
+                row,
+                line,
+                field,
+                lines,
+            } => DataError::UnclosedQuote {
+                row: row + rows,
+                line,
+                field,
+                lines,
+            },
             DataError::NotUtf8 { at: a } => DataError::NotUtf8 { at: at(a) },
             DataError::NotANumber { at: a, text } => DataError::NotANumber { at: at(a), text },
             DataError::NotFinite { at: a, text } => DataError::NotFinite { at: at(a), text },
@@ -280,6 +306,7 @@ impl DataError {
     pub(super) fn with_line(mut self, new: u64) -> DataError {
         match &mut self {
             DataError::Ragged { line, .. }
+            | DataError::UnclosedQuote { line, .. }
             | DataError::Syntax { line, .. }
             | DataError::UnlistedLevel { line, .. } => *line = new,
             DataError::NotUtf8 { at }
@@ -335,6 +362,9 @@ impl DataError {
             }
             DataError::Ragged { .. } => d.help(
                 "every row needs as many fields as the header; check for a stray or missing delimiter, or quote fields that contain commas",
+            ),
+            DataError::UnclosedQuote { .. } => d.help(
+                "close the quote at the end of the field (a quote inside a quoted field is written twice: \"\"), or remove it",
             ),
             DataError::NotUtf8 { .. } => d.help("save the file as UTF-8 text"),
             DataError::Syntax { .. } => d.help("check the quoting on that line"),

@@ -295,6 +295,18 @@ impl<'a> Sorter<'a> {
         let model = &self.plan.model;
         let row = part.rows_read;
         let line = record.position().map_or(row + 1, |p| p.line());
+        if record.len() < columns.len()
+            && let Some((field, text)) = record.iter().enumerate().find(|(_, f)| f.contains(&b'\n'))
+        {
+            // A short row whose field spans lines: a quote opened and never closed.
+            return Err(DataError::UnclosedQuote {
+                row,
+                line,
+                field: field + 1,
+                lines: text.iter().filter(|b| **b == b'\n').count()
+                    + usize::from(text.last() != Some(&b'\n')),
+            });
+        }
         if record.len() != columns.len() {
             return Err(DataError::Ragged {
                 row,
