@@ -808,3 +808,34 @@ fn an_unterminated_quote_is_named_where_it_opens() {
     assert!(!dir.join("out").exists());
     let _ = fs::remove_dir_all(dir);
 }
+
+#[test]
+fn the_manual_page_refers_to_no_page_that_does_not_exist() {
+    // Defect: the man page listed slopewise-run(1) and the like, which do not exist.
+    let dir = setup("man");
+    let o = slopewise(&dir, &["man"]);
+    assert!(o.status.success());
+    let page = String::from_utf8(o.stdout).unwrap();
+    let refs: Vec<&str> = page
+        .split_whitespace()
+        .filter(|w| w.ends_with("(1)") || w.contains("(1)"))
+        .collect();
+    assert!(
+        refs.iter()
+            .all(|w| w.contains("slopewise(1)") || *w == "slopewise"),
+        "{refs:?}"
+    );
+    assert!(
+        !page.contains("slopewise\\-run(1)"),
+        "a page that does not exist"
+    );
+    for command in [
+        "run", "check", "verify", "selftest", "keygen", "approve", "diff", "init", "schema",
+    ] {
+        assert!(
+            page.contains(&format!(".SS \"slopewise {command}\"")),
+            "{command} missing"
+        );
+    }
+    let _ = fs::remove_dir_all(dir);
+}

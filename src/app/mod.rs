@@ -81,14 +81,9 @@ pub fn main() -> ExitCode {
             say(&String::from_utf8_lossy(&script));
             Ok(())
         }
-        Command::Man => {
-            let cmd = <Cli as clap::CommandFactory>::command();
-            let mut page = Vec::new();
-            clap_mangen::Man::new(cmd)
-                .render(&mut page)
-                .map(|()| say(&String::from_utf8_lossy(&page)))
-                .map_err(|e| Diagnostic::new(format!("cannot write the manual page: {e}")))
-        }
+        Command::Man => manual_page()
+            .map(|page| say(&page))
+            .map_err(|e| Diagnostic::new(format!("cannot write the manual page: {e}"))),
     };
     finish(outcome)
 }
@@ -121,4 +116,63 @@ pub(super) fn finish(outcome: Result<(), Diagnostic>) -> ExitCode {
             ExitCode::FAILURE
         }
     }
+}
+
+/// The one manual page: every command described in it, so it names no page that
+/// does not exist (clap_mangen's subcommand list points at `slopewise-run(1)` and
+/// the like, which slopewise does not install).
+fn manual_page() -> std::io::Result<String> {
+    let mut cmd = <Cli as clap::CommandFactory>::command();
+    cmd.build();
+    let man = clap_mangen::Man::new(cmd.clone());
+    let mut page = Vec::new();
+    man.render_title(&mut page)?;
+    man.render_name_section(&mut page)?;
+    man.render_synopsis_section(&mut page)?;
+    man.render_description_section(&mut page)?;
+    man.render_options_section(&mut page)?;
+    let mut text = String::from_utf8_lossy(&page).into_owned();
+    text.push_str(".SH COMMANDS\n");
+    for sub in cmd.get_subcommands().filter(|s| s.get_name() != "help") {
+        text.push_str(&format!(".SS \"slopewise {}\"\n", sub.get_name()));
+        if let Some(about) = sub.get_long_about().or(sub.get_about()) {
+            text.push_str(&roff_text(&about.to_string()));
+            text.push('\n');
+        }
+        let usage = sub.clone().render_usage().to_string();
+        text.push_str(&format!(".PP\n{}\n", roff_text(usage.trim())));
+        for arg in sub.get_arguments().filter(|a| !a.is_hide_set()) {
+            let name = match (arg.get_long(), arg.get_short()) {
+                (Some(l), _) => format!("\\fB\\-\\-{}\\fR", l.replace('-', "\\-")),
+                (None, Some(c)) => format!("\\fB\\-{c}\\fR"),
+                (None, None) => format!("\\fI{}\\fR", arg.get_id()),
+            };
+            text.push_str(&format!(".TP\n{name}\n"));
+            if let Some(help) = arg.get_help() {
+                text.push_str(&roff_text(&help.to_string()));
+                text.push('\n');
+            }
+        }
+    }
+    let mut rest = Vec::new();
+    man.render_version_section(&mut rest)?;
+    text.push_str(&String::from_utf8_lossy(&rest));
+    Ok(text)
+}
+
+/// Text for a roff line: backslashes and hyphens escaped, no line starting with a
+/// control character.
+fn roff_text(s: &str) -> String {
+    let escaped = s.replace('\\', "\\e").replace('-', "\\-");
+    escaped
+        .lines()
+        .map(|l| {
+            if l.starts_with('.') || l.starts_with('\'') {
+                format!("\\&{l}")
+            } else {
+                l.to_string()
+            }
+        })
+        .collect::<Vec<_>>()
+        .join("\n")
 }
