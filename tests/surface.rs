@@ -839,3 +839,43 @@ fn the_manual_page_refers_to_no_page_that_does_not_exist() {
     }
     let _ = fs::remove_dir_all(dir);
 }
+
+#[test]
+fn thousands_of_groups_list_no_pairs_beyond_the_cap() {
+    // Defect: 10,000 groups × 5 rows aborted on a 12 GB allocation in the pairwise
+    // slopes (1,000 groups: 1.6 GB and a 367 MB results.json). Beyond
+    // report.max_pairs no pair is built; the memory figures for 1k and 10k groups are
+    // in bench/RESULTS.md (bench/groups.sh).
+    let dir = setup("many-groups");
+    let mut csv = String::from("plot,length_cm,mass_g\n");
+    for g in 0..2000 {
+        for i in 0..5 {
+            let e = [0.02, -0.01, 0.03, -0.02, 0.0][(g + i) % 5];
+            csv.push_str(&format!("p{g:04},{i},{}\n", 1.0 + 0.5 * i as f64 + e));
+        }
+    }
+    fs::write(dir.join("data.csv"), csv).unwrap();
+    let plan = unindent(BASE_PLAN).replace("[report]\n", "[report]\nformats = [\"json\"]\n");
+    fs::write(dir.join("plan.toml"), plan).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let text = fs::read_to_string(dir.join("out/results.json")).unwrap();
+    let r: serde_json::Value = serde_json::from_str(&text).unwrap();
+    assert_eq!(r["groups"].as_array().unwrap().len(), 2000);
+    for key in [
+        "pairwise_slopes",
+        "pairwise_adjusted",
+        "regions",
+        "differences_at",
+    ] {
+        assert!(r[key].as_array().unwrap().is_empty(), "{key} listed");
+    }
+    assert!(r["warnings"].as_array().unwrap().iter().any(|w| {
+        w.as_str()
+            .unwrap()
+            .starts_with("2000 groups give 1999000 pairs, more than report.max_pairs = 5000")
+    }));
+    // Linear in the groups: about a kilobyte per group.
+    assert!(text.len() < 4_000_000, "{} bytes", text.len());
+    let _ = fs::remove_dir_all(dir);
+}

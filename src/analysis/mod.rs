@@ -295,6 +295,17 @@ fn procedure(
         fits.floor,
         &mut warnings,
     );
+    // k groups give k(k − 1)/2 pairs: beyond the plan's cap none is listed, so the
+    // memory stays bounded by the groups, not their square.
+    let k = levels.len() as u64;
+    let pairs = k * k.saturating_sub(1) / 2;
+    let list_pairs = pairs <= plan.report.max_pairs;
+    if !list_pairs {
+        warnings.push(format!(
+            "{k} groups give {pairs} pairs, more than report.max_pairs = {}: the pairwise lists (slope and adjusted-mean differences, regions, differences at chosen values, equivalence) are left out. The equal-slopes and group-effect tests cover every group; raise report.max_pairs to list the pairs.",
+            plan.report.max_pairs
+        ));
+    }
     let robust = robust::compute(
         &robust::Settings {
             kind: plan.tests.covariance,
@@ -302,6 +313,7 @@ fn procedure(
             slopes_alpha: plan.tests.slopes_alpha,
             comparisons: plan.tests.comparisons,
             adjust_at,
+            list_pairs,
         },
         &levels,
         &eligible.groups,
@@ -316,7 +328,11 @@ fn procedure(
     {
         equal_slopes.homogeneous = rb.equal_slopes.homogeneous;
     }
-    let pairwise_slopes = gate::pairwise_slopes(&levels, separate, plan.tests.comparisons, alpha);
+    let pairwise_slopes = if list_pairs {
+        gate::pairwise_slopes(&levels, separate, plan.tests.comparisons, alpha)
+    } else {
+        Vec::new()
+    };
     let equivalence = plan.tests.slope_margin.map(|margin| {
         let pairs: Vec<equivalence::Difference> = match &robust {
             Some(rb) => rb
@@ -360,8 +376,11 @@ fn procedure(
     let common_slope = compare::common_slope(common, alpha);
     let group_effect = compare::group_effect(common, one, fits.floor, &mut warnings);
     let adjusted_means = compare::adjusted_means(&levels, &moments, common, adjust_at, alpha);
-    let pairwise_adjusted =
-        compare::pairwise_adjusted(&levels, &moments, common, alpha, plan.tests.comparisons);
+    let pairwise_adjusted = if list_pairs {
+        compare::pairwise_adjusted(&levels, &moments, common, alpha, plan.tests.comparisons)
+    } else {
+        Vec::new()
+    };
     if !pairwise::tukey_feasible(levels.len()) {
         warnings.push(format!(
             "Tukey–Kramer p-values are left out (null): with {} groups there are {} pairs, and slopewise computes them for at most {} groups. Holm or Bonferroni adjustment covers any number of pairs.",
@@ -402,7 +421,7 @@ fn procedure(
         influence,
     };
 
-    let (regions, differences_at) = if homogeneous {
+    let (regions, differences_at) = if homogeneous || !list_pairs {
         (Vec::new(), Vec::new())
     } else {
         let all = one.line.moments;

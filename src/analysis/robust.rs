@@ -43,6 +43,8 @@ pub(super) struct Settings {
     pub slopes_alpha: f64,
     pub comparisons: Comparisons,
     pub adjust_at: f64,
+    /// False beyond `report.max_pairs`: no pair is listed.
+    pub list_pairs: bool,
 }
 
 /// The robust results, or `None` for the classical covariance.
@@ -87,7 +89,7 @@ pub(super) fn compute(
     );
 
     let mut pairwise_slopes = Vec::new();
-    for i in 0..k {
+    for i in (0..k).filter(|_| s.list_pairs) {
         for j in i + 1..k {
             let d = separate.lines[i].slope - separate.lines[j].slope;
             let se = match (slope_var[i], slope_var[j]) {
@@ -142,7 +144,7 @@ pub(super) fn compute(
         })
         .collect();
     let mut pairwise_adjusted = Vec::new();
-    for i in 0..k {
+    for i in (0..k).filter(|_| s.list_pairs) {
         for j in i + 1..k {
             let (ma, mb) = (&groups[i].moments, &groups[j].moments);
             let (na, nb) = (ma.n as f64, mb.n as f64);

@@ -47,6 +47,9 @@ fn covariate_value(
     Ok(v)
 }
 
+/// Pairs of groups listed by default: 100 groups.
+pub const DEFAULT_MAX_PAIRS: u64 = 5000;
+
 /// A validated plan.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Plan {
@@ -217,6 +220,8 @@ pub struct ReportSpec {
     pub out: Option<String>,
     /// Where the common-slope tables go when the slopes differ.
     pub forced_equal: ForcedEqual,
+    /// The most pairs of groups listed.
+    pub max_pairs: u64,
 }
 
 /// Byte spans of plan values that later stages may need to point at.
@@ -512,6 +517,7 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
             formats: vec![Format::Markdown, Format::Json],
             out: None,
             forced_equal: ForcedEqual::Section,
+            max_pairs: DEFAULT_MAX_PAIRS,
         },
         Some(r) => {
             let r = r.get_ref();
@@ -543,7 +549,19 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                 Some(o) => Some(nonempty(o, "report.out", &err)?),
                 None => None,
             };
+            let max_pairs = match &r.max_pairs {
+                None => DEFAULT_MAX_PAIRS,
+                Some(m) if *m.get_ref() == 0 => {
+                    return Err(err(
+                        m.span(),
+                        "report.max_pairs must be at least 1".into(),
+                        "give the most pairs of groups to list, such as 5000",
+                    ));
+                }
+                Some(m) => *m.get_ref(),
+            };
             ReportSpec {
+                max_pairs,
                 formats,
                 out,
                 forced_equal: r

@@ -360,6 +360,12 @@ pub(super) struct RawReport {
     /// slopes and regions) or "omit" (left out of the report; results.json keeps them).
     #[schemars(with = "Option<ForcedEqual>", extend("default" = "section"))]
     pub forced_equal: Option<Spanned<ForcedEqual>>,
+    /// The most pairs of groups listed (slope differences, adjusted-mean differences,
+    /// regions, equivalence): k groups give k(k − 1)/2 pairs. Beyond it the pairwise
+    /// lists are left out with a note, so thousands of groups stay in bounded memory;
+    /// the gate and the group-effect test still cover every group.
+    #[schemars(with = "Option<u64>", extend("minimum" = 1, "default" = 5000, "examples" = [20000]))]
+    pub max_pairs: Option<Spanned<u64>>,
 }
 
 /// Where the common-slope tables go when the slopes differ.

@@ -3,24 +3,35 @@
 #[allow(unused_imports)]
 use super::*;
 
+/// Groups whose lines and bands are drawn at most: beyond that the colours repeat
+/// and the lines cannot be told apart, and the file grows with every group.
+pub(super) const MAX_GROUPS_DRAWN: usize = 24;
+
 pub(super) fn lines(ctx: &Context) -> Result<Figure, String> {
     let r = ctx.r;
     let alpha = r.model.alpha;
-    let separate: Vec<Curve> = r.groups.iter().map(|g| separate_curve(g, alpha)).collect();
+    let drawn = r.groups.len().min(MAX_GROUPS_DRAWN);
+    let separate: Vec<Curve> = r
+        .groups
+        .iter()
+        .take(drawn)
+        .map(|g| separate_curve(g, alpha))
+        .collect();
     let t_common = t_crit(alpha, r.common_slope.df);
     let common: Vec<Curve> = r
         .groups
         .iter()
+        .take(drawn)
         .map(|g| common_curve(r, g, t_common).unwrap_or_default())
         .collect();
 
     let mut xs = Extent::default();
     let mut ys = Extent::default();
-    for g in &r.groups {
+    for g in r.groups.iter().take(drawn) {
         xs.add(g.covariate_min);
         xs.add(g.covariate_max);
     }
-    for pts in &ctx.points {
+    for pts in ctx.points.iter().take(drawn) {
         for p in pts {
             xs.add(p[0]);
             ys.add(p[1]);
@@ -37,7 +48,8 @@ pub(super) fn lines(ctx: &Context) -> Result<Figure, String> {
     }
     let (xr, yr) = (xs.padded(), ys.padded());
 
-    let items = group_legend(r);
+    let mut items = group_legend(r);
+    items.truncate(drawn);
     let width = FULL_WIDTH;
     let panel_h = 420;
     let legend = Legend::layout(&items, width as f64 - 40.0);
@@ -64,7 +76,7 @@ pub(super) fn lines(ctx: &Context) -> Result<Figure, String> {
             let frame = panel(area, &axes, layers, &|_| String::new())?;
             let curves = if k == 0 { &separate } else { &common };
             let mut layer = String::new();
-            for (i, pts) in ctx.points.iter().enumerate() {
+            for (i, pts) in ctx.points.iter().take(drawn).enumerate() {
                 markers(
                     &mut layer,
                     &frame,
@@ -97,8 +109,16 @@ pub(super) fn lines(ctx: &Context) -> Result<Figure, String> {
     let caption = format!(
         "Left: each group's own least-squares line with its pointwise {level}% confidence band, over the group's covariate range. \
          Right: the parallel-lines model, one common slope ({b}) with each line through the group's adjusted mean, \
-         and its pointwise {level}% band. {}",
-        ctx.points_sentence()
+         and its pointwise {level}% band. {}{}",
+        ctx.points_sentence(),
+        if drawn < r.groups.len() {
+            format!(
+                " Only the first {drawn} of {} groups are drawn (their colours would repeat); results.json holds every group's line.",
+                r.groups.len()
+            )
+        } else {
+            String::new()
+        }
     );
     finish(
         "figures/lines.svg",
