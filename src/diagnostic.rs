@@ -111,16 +111,34 @@ fn render_snippet(out: &mut String, snippet: &Snippet) {
     let number = line.to_string();
     let pad = " ".repeat(number.len());
     let _ = writeln!(out, " {pad} |");
-    let _ = writeln!(out, " {number} | {text}");
+    // The line is shown with its tabs expanded, so the caret's place is known
+    // whatever the terminal does with a tab; wide (CJK) and combining characters
+    // are measured by their display width (unicode-width).
+    let _ = writeln!(out, " {number} | {}", text.replace('\t', TAB));
     let caret_end = end.min(line_end).max(start);
-    let width = source[start..caret_end].chars().count().max(1);
+    let before = display_width(&source[line_start..start]);
+    let width = display_width(&source[start..caret_end]).max(1);
     let _ = writeln!(
         out,
         " {pad} | {}{} {}",
-        " ".repeat(col - 1),
+        " ".repeat(before),
         "^".repeat(width),
         snippet.label
     );
+}
+
+/// A tab in a shown source line.
+const TAB: &str = "    ";
+
+/// Columns a text takes on a terminal: tabs as [`TAB`], wide characters two,
+/// combining and zero-width characters none.
+fn display_width(s: &str) -> usize {
+    s.chars()
+        .map(|c| match c {
+            '\t' => TAB.len(),
+            c => unicode_width::UnicodeWidthChar::width(c).unwrap_or(0),
+        })
+        .sum()
 }
 
 /// The closest of `candidates` to `word`, when one is close enough to be a likely typo.

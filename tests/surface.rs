@@ -879,3 +879,59 @@ fn thousands_of_groups_list_no_pairs_beyond_the_cap() {
     assert!(text.len() < 4_000_000, "{} bytes", text.len());
     let _ = fs::remove_dir_all(dir);
 }
+
+/// The caret line of a rendered error: the columns before the carets and their count.
+fn caret(err: &str) -> (usize, usize) {
+    let line = err
+        .lines()
+        .find(|l| l.contains('^'))
+        .unwrap_or_else(|| panic!("no caret in {err}"));
+    let bar = line.find('|').unwrap() + 2;
+    let rest = &line[bar..];
+    let before = rest.chars().take_while(|c| *c == ' ').count();
+    let carets = rest.chars().filter(|c| *c == '^').count();
+    (before, carets)
+}
+
+#[test]
+fn carets_sit_under_the_value_after_tabs_and_wide_characters() {
+    // Defect: carets under TOML errors were misplaced on lines with tabs or wide
+    // characters (they counted characters, not columns).
+    let dir = setup("carets");
+    // A tab before the key: the line is shown with the tab as four spaces, and the
+    // caret under `5` sits at column 4 + len("alpha = ").
+    fs::write(
+        dir.join("plan.toml"),
+        unindent(BASE_PLAN).replace("[report]\n", "[tests]\n\talpha = 5\n\n[report]\n"),
+    )
+    .unwrap();
+    let err = stderr(&slopewise(&dir, &["run", "plan.toml"]));
+    assert!(err.contains(" |     alpha = 5\n"), "{err}");
+    assert_eq!(caret(&err), (4 + "alpha = ".len(), 1), "{err}");
+    // CJK labels are two columns wide: the caret under the second "数据" starts
+    // after `levels = ["数据", ` (11 + 4 + 3 columns) and spans its 6 columns.
+    fs::write(
+        dir.join("plan.toml"),
+        unindent(BASE_PLAN).replace(
+            "group = \"plot\"\n",
+            "group = \"plot\"\nlevels = [\"数据\", \"数据\"]\n",
+        ),
+    )
+    .unwrap();
+    let err = stderr(&slopewise(&dir, &["run", "plan.toml"]));
+    assert!(err.contains("is listed twice"), "{err}");
+    assert_eq!(caret(&err), (18, 6), "{err}");
+    // A combining accent takes no column: "e\u{301}" is one column wide.
+    fs::write(
+        dir.join("plan.toml"),
+        unindent(BASE_PLAN).replace(
+            "group = \"plot\"\n",
+            "group = \"plot\"\nlevels = [\"e\u{301}\", \"e\u{301}\"]\n",
+        ),
+    )
+    .unwrap();
+    let err = stderr(&slopewise(&dir, &["run", "plan.toml"]));
+    // `levels = ["` (11) + one column + `", ` (3).
+    assert_eq!(caret(&err), (15, 3), "{err}");
+    let _ = fs::remove_dir_all(dir);
+}
