@@ -827,8 +827,11 @@ fn more_than_two_hundred_groups_run_with_tables_cut_and_no_nan() {
             ));
         }
     }
+    // 21,945 pairs: above the default report.max_pairs, so the plan raises it to
+    // see the pairwise tables cut at 200 rows.
+    let plan = BASE_PLAN.replace("[report]\n", "[report]\n    max_pairs = 30000\n");
     let out = Test::new("many_groups")
-        .plan(BASE_PLAN)
+        .plan(&plan)
         .data(&data)
         .succeeds()
         .run();
