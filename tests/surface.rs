@@ -935,3 +935,42 @@ fn carets_sit_under_the_value_after_tabs_and_wide_characters() {
     assert_eq!(caret(&err), (15, 3), "{err}");
     let _ = fs::remove_dir_all(dir);
 }
+
+#[test]
+fn standard_input_is_a_data_source_read_once_and_hashed() {
+    // `path = "-"`: the data come on stdin, are read once, and the record holds the
+    // SHA-256 of exactly those bytes; verify cannot reread stdin and says how to
+    // check (a saved copy with --data).
+    let dir = setup("stdin");
+    let plan = unindent(BASE_PLAN).replace("path = \"data.csv\"", "path = \"-\"");
+    fs::write(dir.join("plan.toml"), plan).unwrap();
+    let data = unindent(THREE_PLOTS);
+    let mut child = Command::new(env!("CARGO_BIN_EXE_slopewise"))
+        .args(["run", "plan.toml"])
+        .current_dir(&dir)
+        .stdin(std::process::Stdio::piped())
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    std::io::Write::write_all(&mut child.stdin.take().unwrap(), data.as_bytes()).unwrap();
+    let o = child.wait_with_output().unwrap();
+    assert!(o.status.success(), "{}", stderr(&o));
+    let r: serde_json::Value =
+        serde_json::from_str(&fs::read_to_string(dir.join("out/results.json")).unwrap()).unwrap();
+    let want = slopewise::digest::sha256_hex(data.as_bytes());
+    assert_eq!(r["provenance"]["data_sha256"], want.as_str());
+    assert_eq!(r["data"]["rows_read"], 15);
+    let o = slopewise(&dir, &["verify", "out"]);
+    assert!(!o.status.success());
+    assert!(
+        stderr(&o).contains("read from standard input, which cannot be read again"),
+        "{}",
+        stderr(&o)
+    );
+    assert!(stderr(&o).contains("--data FILE"), "{}", stderr(&o));
+    fs::write(dir.join("saved.csv"), &data).unwrap();
+    let o = slopewise(&dir, &["verify", "out", "--data", "saved.csv"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let _ = fs::remove_dir_all(dir);
+}

@@ -21,7 +21,13 @@ pub(super) struct Analysed {
 /// Reads the data (checking any pin) and runs the analysis.
 pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Diagnostic> {
     let plan = &lp.plan;
-    let data_file = data_path.display().to_string();
+    // `path = "-"` means standard input, unless `verify --data` names a saved copy.
+    let stdin = plan.data.path == STDIN && data_path == lp.dir.join(STDIN);
+    let data_file = if stdin {
+        "standard input".to_string()
+    } else {
+        data_path.display().to_string()
+    };
     let open = || {
         File::open(data_path).map_err(|e| {
             Diagnostic::new(format!("cannot open the data file {data_file}: {e}"))
@@ -39,7 +45,13 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
             _ => Ok(()),
         }
     };
-    let (dataset, data_sha256) = match source_kind(data_path) {
+    // `path = "-"`: the data come on standard input, read once and hashed as read.
+    let source = if stdin {
+        Source::Stdin
+    } else {
+        source_kind(data_path)
+    };
+    let (dataset, data_sha256) = match source {
         Source::Regular => {
             sniff(open()?, &data_file)?;
             if plan.data.sha256.is_some() {
@@ -47,11 +59,16 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
             }
             read_regular(lp, data_path, &data_file, open()?)?
         }
-        Source::Pipe => {
+        Source::Pipe | Source::Stdin => {
             // A pipe can be read only once: read it whole, hash those bytes, and
             // parse exactly them, so the record, the pin and the parse agree.
             let mut bytes = Vec::new();
-            std::io::Read::read_to_end(&mut open()?, &mut bytes).map_err(|e| {
+            let read = if stdin {
+                std::io::Read::read_to_end(&mut std::io::stdin().lock(), &mut bytes)
+            } else {
+                std::io::Read::read_to_end(&mut open()?, &mut bytes)
+            };
+            read.map_err(|e| {
                 Diagnostic::new(format!("cannot read the data file {data_file}: {e}"))
             })?;
             check_text(&bytes, &data_file)?;
@@ -104,10 +121,15 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
     })
 }
 
+/// The data path that names standard input.
+pub(super) const STDIN: &str = "-";
+
 /// What kind of thing a data path names.
 enum Source {
     Regular,
     Pipe,
+    /// `path = "-"`.
+    Stdin,
     /// Anything else, described for the message.
     Other(&'static str),
 }

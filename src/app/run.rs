@@ -189,8 +189,17 @@ pub(super) fn write_outputs(
     recorded: Option<&str>,
 ) -> Result<(), Diagnostic> {
     let pdf = lp.plan.report.formats.contains(&Format::Pdf);
-    let data_from_run_folder =
-        recorded.map_or_else(|| relative_to(as_if, &a.data_path), str::to_string);
+    let data_from_run_folder = recorded.map_or_else(
+        || {
+            if lp.plan.data.path == super::analyse::STDIN {
+                // Standard input has no place to find it again.
+                super::analyse::STDIN.to_string()
+            } else {
+                relative_to(as_if, &a.data_path)
+            }
+        },
+        str::to_string,
+    );
     let finish = |staging: &Path| -> Result<(), Diagnostic> {
         let compiled = if pdf { compile_pdf(staging) } else { Ok(()) };
         let pv = &a.results.provenance;

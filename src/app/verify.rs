@@ -158,6 +158,15 @@ fn rerun(
             manifest.plan_sha256
         )));
     }
+    if manifest.data_file == super::analyse::STDIN && data_override.is_none() {
+        return Err(Diagnostic::new(format!(
+            "{shown} was run on data read from standard input, which cannot be read again"
+        ))
+        .help(format!(
+            "save those bytes to a file and pass it with --data FILE; verify checks that its SHA-256 is {}",
+            manifest.data_sha256
+        )));
+    }
     let data_path = data_path(folder, manifest, data_override);
     let data_shown = data_path.display().to_string();
     let file = std::fs::File::open(&data_path).map_err(|e| {
