@@ -974,3 +974,20 @@ fn standard_input_is_a_data_source_read_once_and_hashed() {
     assert!(o.status.success(), "{}", stderr(&o));
     let _ = fs::remove_dir_all(dir);
 }
+
+#[test]
+fn no_progress_text_reaches_a_stderr_that_is_not_a_terminal() {
+    // Progress shows on a terminal only (logs, pipes and CI stay clean). The hidden
+    // SLOPEWISE_PROGRESS_MIN_BYTES lowers the 100 MB threshold so a small file
+    // would qualify.
+    let dir = setup("progress");
+    let o = Command::new(env!("CARGO_BIN_EXE_slopewise"))
+        .args(["run", "plan.toml"])
+        .current_dir(&dir)
+        .env("SLOPEWISE_PROGRESS_MIN_BYTES", "1")
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(stderr(&o).is_empty(), "{}", stderr(&o));
+    let _ = fs::remove_dir_all(dir);
+}

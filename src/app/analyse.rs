@@ -214,8 +214,30 @@ fn read_regular(
         .metadata()
         .map_err(|e| Diagnostic::new(format!("cannot read the data file {data_file}: {e}")))?
         .len();
+    // A large file shows its progress on a terminal (never in logs or pipes). The
+    // bar follows the hash, which reads the whole file beside the parse.
+    // SLOPEWISE_PROGRESS_MIN_BYTES (hidden, for the tests) lowers the size.
+    let min = std::env::var("SLOPEWISE_PROGRESS_MIN_BYTES")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(PROGRESS_MIN_BYTES);
+    let bar = (len > min && std::io::IsTerminal::is_terminal(&std::io::stderr())).then(|| {
+        let bar = indicatif::ProgressBar::new(len);
+        bar.set_style(
+            indicatif::ProgressStyle::with_template("reading {bytes}/{total_bytes} {bar:30} {eta}")
+                .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+        );
+        bar
+    });
     let (dataset, data_sha256) = std::thread::scope(|scope| {
-        let hasher = scope.spawn(|| hash_file(for_hash, data_file));
+        let hasher = scope.spawn(|| match &bar {
+            Some(b) => HashingReader::new(b.wrap_read(for_hash))
+                .finish()
+                .map_err(|e| {
+                    Diagnostic::new(format!("cannot read the data file {data_file}: {e}"))
+                }),
+            None => hash_file(for_hash, data_file),
+        });
         let dataset = data::load_seekable(plan, len, data::PARALLEL_MIN_BYTES, || {
             File::open(data_path)
         })
@@ -225,8 +247,14 @@ fn read_regular(
             .unwrap_or_else(|_| Err(Diagnostic::new("hashing the data file failed")));
         (dataset, hash)
     });
+    if let Some(b) = bar {
+        b.finish_and_clear();
+    }
     Ok((dataset?, data_sha256?))
 }
+
+/// Files above this size (about 100 MB) show a progress bar on a terminal.
+const PROGRESS_MIN_BYTES: u64 = 100 * 1024 * 1024;
 
 pub(super) fn hash_file(file: File, shown: &str) -> Result<String, Diagnostic> {
     HashingReader::new(file)
