@@ -72,6 +72,10 @@ pub struct Results {
     /// when the plan's `tests.covariance` names one; the gate then decides on it.
     #[serde(default)]
     pub robust: Option<Robust>,
+    /// What next season needs: the rows per group for the equal-slopes test to
+    /// detect the slope margin (or the smallest difference this season could detect).
+    #[serde(default)]
+    pub next_season: Option<NextSeason>,
     /// Two one-sided tests of every pair of slopes against `tests.slope_margin`, when
     /// the plan gives one.
     #[serde(default)]
@@ -469,6 +473,16 @@ pub struct DifferenceAt {
 pub struct EffectSizes {
     /// Of the slope differences, against the separate-slopes residual.
     pub equal_slopes_partial_eta2: Option<f64>,
+    /// Its interval at 1 − alpha, from the noncentrality limits of the equal-slopes F
+    /// (Steiger 2004) with λ = f²·(df1 + df2 + 1) and η² = f²/(1 + f²).
+    #[serde(default)]
+    pub equal_slopes_partial_eta2_ci: Option<[f64; 2]>,
+    /// Cohen's f² of the slope differences, F·df1/df2.
+    #[serde(default)]
+    pub equal_slopes_f2: Option<f64>,
+    /// Its interval at 1 − alpha, λ limits over (df1 + df2 + 1).
+    #[serde(default)]
+    pub equal_slopes_f2_ci: Option<[f64; 2]>,
     /// Of the group effect, against the common-slope residual.
     pub group_effect_partial_eta2: Option<f64>,
 }
@@ -1029,4 +1043,31 @@ pub struct PairChange {
     pub before: Option<bool>,
     /// ... and without the rows that matter.
     pub after: Option<bool>,
+}
+
+/// Planning the next season from this one's spread (noncentral F power).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct NextSeason {
+    /// Level of the equal-slopes test planned for.
+    pub alpha: f64,
+    /// "slope-margin" (the plan's tests.slope_margin) or "detectable-difference" (no
+    /// margin: the smallest slope difference this season detects with power 0.8).
+    pub basis: String,
+    /// The slope difference planned for.
+    pub difference: f64,
+    /// The pair hardest to tell apart (the least covariate spread per row).
+    pub pair: [String; 2],
+    /// This season's residual variance (separate lines).
+    pub residual_variance: f64,
+    /// The pair's covariate variance per row, Sxx/n.
+    pub covariate_variance: [f64; 2],
+    /// Rows per group this season (the smaller of the pair).
+    pub rows_now: u64,
+    /// Power this season had for `difference` (for a margin; with the detectable
+    /// difference it is 0.8 by construction).
+    pub power_now: Option<f64>,
+    /// Rows per group for power 0.8.
+    pub rows_for_80: Option<u64>,
+    /// Rows per group for power 0.9.
+    pub rows_for_90: Option<u64>,
 }

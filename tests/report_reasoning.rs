@@ -606,3 +606,27 @@ fn covariate_values_in_a_plan_are_on_the_measured_scale() {
     assert!(!dir.join("out").exists());
     let _ = std::fs::remove_dir_all(dir);
 }
+
+/// Planning the next season (issue 14 item 4): without a margin the record gives the
+/// smallest slope difference detectable with power 0.8 at this season's rows; given
+/// that difference as the margin, this season's power for it is 0.8 and the rows for
+/// 0.8 are this season's. (The noncentral F itself is checked against scipy in
+/// src/stats/noncentral_f.rs.)
+#[test]
+fn next_season_planning_is_consistent_between_its_two_bases() {
+    let data = lots(PARALLEL.0, PARALLEL.1);
+    let (dir, r, report) = run("plan-detectable", &data, "");
+    let p = &r["next_season"];
+    assert_eq!(p["basis"], "detectable-difference");
+    let delta = p["difference"].as_f64().unwrap();
+    assert!(delta > 0.0);
+    assert!(report.contains("## Planning the next season"));
+    let _ = std::fs::remove_dir_all(dir);
+    let extra = format!("\n[tests]\nslope_margin = {delta:?}\n");
+    let (dir, r, _) = run("plan-margin", &data, &extra);
+    let q = &r["next_season"];
+    assert_eq!(q["basis"], "slope-margin");
+    assert!((q["power_now"].as_f64().unwrap() - 0.8).abs() < 1e-6, "{q}");
+    assert_eq!(q["rows_for_80"], q["rows_now"]);
+    let _ = std::fs::remove_dir_all(dir);
+}

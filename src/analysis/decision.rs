@@ -316,6 +316,7 @@ fn sections(
         s.push("limits");
     }
     s.push("checks");
+    s.push("next-season");
     if common_slope_tables == "forced-equal" {
         s.push("forced-equal");
     }

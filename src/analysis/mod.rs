@@ -24,6 +24,7 @@ mod gate;
 pub mod influence;
 mod limits;
 mod pairwise;
+mod planning;
 mod regions;
 mod robust;
 mod scale;
@@ -389,10 +390,21 @@ fn procedure(
             pairwise::MAX_TUKEY_GROUPS
         ));
     }
+    let (equal_slopes_f2, equal_slopes_f2_ci, equal_slopes_partial_eta2_ci) =
+        planning::effect_intervals(equal_slopes.f, equal_slopes.df1, equal_slopes.df2, alpha);
     let effect_sizes = EffectSizes {
         equal_slopes_partial_eta2: partial_eta2(common.rss - separate.rss, separate.rss),
+        equal_slopes_partial_eta2_ci,
+        equal_slopes_f2,
+        equal_slopes_f2_ci,
         group_effect_partial_eta2: partial_eta2(one.line.rss - common.rss, common.rss),
     };
+    let next_season = planning::next_season(
+        &levels,
+        separate,
+        plan.tests.slopes_alpha,
+        plan.tests.slope_margin,
+    );
 
     // The residual checks and the influence measures each take a few passes over
     // every row and share nothing, so they run on two cores. Warnings keep the
@@ -556,6 +568,7 @@ fn procedure(
         limits_supported,
         pooling,
         robust,
+        next_season,
         equivalence,
         decision: decision::placeholder(),
         warnings: Vec::new(),

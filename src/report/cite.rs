@@ -13,6 +13,7 @@ pub enum Work {
     BollenJackman1990,
     BrownForsythe1974,
     ChanGolubLeVeque1983,
+    Cohen1988,
     Cook1977,
     CookWeisberg1982,
     DixonPechmann2005,
@@ -32,6 +33,7 @@ pub enum Work {
     SearleSpeedMilliken1980,
     ShapiroWilk1965,
     SnedecorCochran1989,
+    Steiger2004,
     Tukey1953,
     Weisberg1985,
     Welch1947,
@@ -41,12 +43,13 @@ pub enum Work {
 
 impl Work {
     /// Every work, for tests.
-    pub const ALL: [Work; 29] = [
+    pub const ALL: [Work; 31] = [
         Work::AbramowitzStegun1964,
         Work::BelsleyKuhWelsch1980,
         Work::BollenJackman1990,
         Work::BrownForsythe1974,
         Work::ChanGolubLeVeque1983,
+        Work::Cohen1988,
         Work::Cook1977,
         Work::CookWeisberg1982,
         Work::DixonPechmann2005,
@@ -66,6 +69,7 @@ impl Work {
         Work::SearleSpeedMilliken1980,
         Work::ShapiroWilk1965,
         Work::SnedecorCochran1989,
+        Work::Steiger2004,
         Work::Tukey1953,
         Work::Weisberg1985,
         Work::Welch1947,
@@ -104,6 +108,10 @@ impl Work {
             Work::ChanGolubLeVeque1983 => (
                 "Chan, Golub & LeVeque 1983",
                 "Chan, T. F., Golub, G. H. & LeVeque, R. J. (1983) The American Statistician 37, 242–247.",
+            ),
+            Work::Cohen1988 => (
+                "Cohen 1988",
+                "Cohen, J. (1988) Statistical Power Analysis for the Behavioral Sciences, 2nd ed.",
             ),
             Work::Cook1977 => ("Cook 1977", "Cook, R. D. (1977) Technometrics 19, 15–18."),
             Work::CookWeisberg1982 => (
@@ -174,6 +182,10 @@ impl Work {
             Work::SnedecorCochran1989 => (
                 "Snedecor & Cochran 1989",
                 "Snedecor, G. W. & Cochran, W. G. (1989) Statistical Methods, 8th ed.",
+            ),
+            Work::Steiger2004 => (
+                "Steiger 2004",
+                "Steiger, J. H. (2004) Psychological Methods 9, 164–182.",
             ),
             Work::Tukey1953 => (
                 "Tukey 1953",

@@ -25,6 +25,25 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
         },
         num3(r.effect_sizes.equal_slopes_partial_eta2)
     ))]);
+    let es_ = &r.effect_sizes;
+    if let (Some(f2), Some(f2_ci), Some(eta_ci)) = (
+        es_.equal_slopes_f2,
+        es_.equal_slopes_f2_ci,
+        es_.equal_slopes_partial_eta2_ci,
+    ) {
+        b.para(vec![
+            t(format!(
+                "Size of the slope differences: Cohen's f² = {} ({} interval {}); partial η² {} interval {}, from the noncentrality limits of the observed F (",
+                num3(Some(f2)),
+                c.conf,
+                ci(Some(f2_ci)),
+                c.conf,
+                ci(Some(eta_ci)),
+            )),
+            Inline::Cite(Work::Steiger2004),
+            t(")."),
+        ]);
+    }
     b.para(prose(&r.decision.reason));
     if let Some(e) = &r.equivalence {
         equivalence(b, c, e);

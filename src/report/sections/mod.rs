@@ -11,6 +11,7 @@ mod gate;
 mod limits;
 mod lines;
 mod methods;
+mod planning;
 mod provenance;
 mod regions;
 mod robust;
@@ -42,6 +43,7 @@ pub fn report(r: &Results, figs: &[FigureRef]) -> Document {
             "regions" => regions::section(&mut b, &c),
             "limits" => limits::section(&mut b, &c),
             "checks" => checks::section(&mut b, &c),
+            "next-season" => planning::section(&mut b, &c),
             "figures" => figures::section(&mut b, figs),
             "warnings" => warnings::section(&mut b, &c),
             "methods" => methods::section(&mut b, &c),
