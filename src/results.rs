@@ -72,6 +72,10 @@ pub struct Results {
     /// when the plan's `tests.covariance` names one; the gate then decides on it.
     #[serde(default)]
     pub robust: Option<Robust>,
+    /// The critical values of the bands around each line, pointwise and
+    /// simultaneous (Working & Hotelling 1929), and which the figures draw.
+    #[serde(default)]
+    pub bands: Bands,
     /// What next season needs: the rows per group for the equal-slopes test to
     /// detect the slope margin (or the smallest difference this season could detect).
     #[serde(default)]
@@ -1070,4 +1074,26 @@ pub struct NextSeason {
     pub rows_for_80: Option<u64>,
     /// Rows per group for power 0.9.
     pub rows_for_90: Option<u64>,
+}
+
+/// Critical values of the bands around each line.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+pub struct Bands {
+    /// "pointwise" or "simultaneous": what the figures draw.
+    pub drawn: String,
+    /// Each group's own line (df n − 2), in level order.
+    pub groups: Vec<BandCritical>,
+    /// The parallel-lines model's lines (df n − k − 1).
+    pub common: BandCritical,
+}
+
+/// The two critical values of one line's band.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+pub struct BandCritical {
+    /// Group label (empty for the parallel-lines model).
+    pub level: String,
+    /// Student's t(1 − alpha/2; df).
+    pub pointwise: Option<f64>,
+    /// Working–Hotelling √(2 F(1 − alpha; 2, df)).
+    pub simultaneous: Option<f64>,
 }

@@ -568,6 +568,7 @@ fn procedure(
         limits_supported,
         pooling,
         robust,
+        bands: bands(plan, &levels, separate, common, alpha),
         next_season,
         equivalence,
         decision: decision::placeholder(),
@@ -623,6 +624,35 @@ fn check_magnitudes(plan: &Plan, groups: &[&GroupData]) -> Result<(), AnalysisEr
         return bad(response, hi_y - lo_y);
     }
     Ok(())
+}
+
+/// Both critical values of every line's band (Working & Hotelling 1929 for the
+/// simultaneous one).
+fn bands(
+    plan: &Plan,
+    levels: &[&str],
+    separate: &SeparateFit,
+    common: &CommonSlopeFit,
+    alpha: f64,
+) -> crate::results::Bands {
+    let both = |level: &str, df: f64| crate::results::BandCritical {
+        level: level.to_string(),
+        pointwise: (df > 0.0).then(|| t_quantile(1.0 - alpha / 2.0, df)),
+        simultaneous: (df > 0.0).then(|| crate::stats::bands::working_hotelling(alpha, df)),
+    };
+    crate::results::Bands {
+        drawn: match plan.report.bands {
+            crate::plan::BandKind::Pointwise => "pointwise",
+            crate::plan::BandKind::Simultaneous => "simultaneous",
+        }
+        .into(),
+        groups: levels
+            .iter()
+            .zip(&separate.lines)
+            .map(|(l, line)| both(l, line.df))
+            .collect(),
+        common: both("", common.df),
+    }
 }
 
 /// SS_effect / (SS_effect + SS_residual); `None` when both are zero.

@@ -11,8 +11,8 @@ mod schema;
 
 pub use error::PlanError;
 pub use schema::{
-    BoundKind, Comparisons, Covariance, ForcedEqual, Format, GateRule, Procedure, Regions, Storage,
-    Transform, derived_json_schema,
+    BandKind, BoundKind, Comparisons, Covariance, ForcedEqual, Format, GateRule, Procedure,
+    Regions, Storage, Transform, derived_json_schema,
 };
 
 use std::ops::Range;
@@ -222,6 +222,8 @@ pub struct ReportSpec {
     pub forced_equal: ForcedEqual,
     /// The most pairs of groups listed.
     pub max_pairs: u64,
+    /// The bands drawn around each line in the figures.
+    pub bands: BandKind,
 }
 
 /// Byte spans of plan values that later stages may need to point at.
@@ -518,6 +520,7 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
             out: None,
             forced_equal: ForcedEqual::Section,
             max_pairs: DEFAULT_MAX_PAIRS,
+            bands: BandKind::Pointwise,
         },
         Some(r) => {
             let r = r.get_ref();
@@ -562,6 +565,10 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
             };
             ReportSpec {
                 max_pairs,
+                bands: r
+                    .bands
+                    .as_ref()
+                    .map_or(BandKind::Pointwise, |b| *b.get_ref()),
                 formats,
                 out,
                 forced_equal: r

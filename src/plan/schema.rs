@@ -366,6 +366,22 @@ pub(super) struct RawReport {
     /// the gate and the group-effect test still cover every group.
     #[schemars(with = "Option<u64>", extend("minimum" = 1, "default" = 5000, "examples" = [20000]))]
     pub max_pairs: Option<Spanned<u64>>,
+    /// The bands around each line in the figures: "pointwise" (Student's t at each
+    /// covariate value) or "simultaneous" (Working & Hotelling 1929: the whole line
+    /// at once). results.json gives both critical values either way.
+    #[schemars(with = "Option<BandKind>", extend("default" = "pointwise", "examples" = ["simultaneous"]))]
+    pub bands: Option<Spanned<BandKind>>,
+}
+
+/// The bands drawn around each line.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema, Default)]
+#[serde(rename_all = "lowercase")]
+pub enum BandKind {
+    /// Student's t at each covariate value.
+    #[default]
+    Pointwise,
+    /// Working–Hotelling, for the whole line.
+    Simultaneous,
 }
 
 /// Where the common-slope tables go when the slopes differ.

@@ -39,11 +39,12 @@ pub enum Work {
     Welch1947,
     Welford1962,
     White1980,
+    WorkingHotelling1929,
 }
 
 impl Work {
     /// Every work, for tests.
-    pub const ALL: [Work; 31] = [
+    pub const ALL: [Work; 32] = [
         Work::AbramowitzStegun1964,
         Work::BelsleyKuhWelsch1980,
         Work::BollenJackman1990,
@@ -75,6 +76,7 @@ impl Work {
         Work::Welch1947,
         Work::Welford1962,
         Work::White1980,
+        Work::WorkingHotelling1929,
     ];
 
     /// How the text cites it: authors and year.
@@ -199,6 +201,10 @@ impl Work {
             Work::Welford1962 => (
                 "Welford 1962",
                 "Welford, B. P. (1962) Technometrics 4, 419–420.",
+            ),
+            Work::WorkingHotelling1929 => (
+                "Working & Hotelling 1929",
+                "Working, H. & Hotelling, H. (1929) JASA 24 (165A), 73–85.",
             ),
             Work::White1980 => ("White 1980", "White, H. (1980) Econometrica 48, 817–838."),
         }

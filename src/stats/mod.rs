@@ -3,6 +3,7 @@
 //! generator.
 
 pub mod adjust;
+pub mod bands;
 pub mod brown_forsythe;
 pub mod dist;
 pub mod nested_f;

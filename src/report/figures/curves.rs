@@ -44,9 +44,25 @@ pub(super) fn separate_at(g: &GroupLineResult, t: Option<f64>, x: f64) -> (f64, 
     (fit, half)
 }
 
-pub(super) fn separate_curve(g: &GroupLineResult, alpha: f64) -> Curve {
-    let t = t_crit(alpha, g.n as f64 - 2.0);
+/// Group g's own line and band, the band's critical value `t` (Student's t for a
+/// pointwise band, the Working–Hotelling value for a simultaneous one).
+pub(super) fn separate_curve(g: &GroupLineResult, t: Option<f64>) -> Curve {
     curve(g.covariate_min, g.covariate_max, |x| separate_at(g, t, x))
+}
+
+/// The critical value the figures use for group `i`'s own line (`None`: the
+/// parallel-lines model), as `results.bands.drawn` says.
+pub(super) fn band_critical(r: &Results, i: Option<usize>) -> Option<f64> {
+    let b = match i {
+        Some(i) => r.bands.groups.get(i)?,
+        None => &r.bands.common,
+    };
+    if r.bands.drawn == "simultaneous" {
+        b.simultaneous
+    } else {
+        b.pointwise
+    }
+    .filter(|t| t.is_finite())
 }
 
 /// Group g's line at x under the common slope b, through its adjusted mean, with

@@ -15,9 +15,15 @@ pub(super) fn lines(ctx: &Context) -> Result<Figure, String> {
         .groups
         .iter()
         .take(drawn)
-        .map(|g| separate_curve(g, alpha))
+        .enumerate()
+        .map(|(i, g)| {
+            separate_curve(
+                g,
+                band_critical(r, Some(i)).or_else(|| t_crit(alpha, g.n as f64 - 2.0)),
+            )
+        })
         .collect();
-    let t_common = t_crit(alpha, r.common_slope.df);
+    let t_common = band_critical(r, None).or_else(|| t_crit(alpha, r.common_slope.df));
     let common: Vec<Curve> = r
         .groups
         .iter()
@@ -106,10 +112,15 @@ pub(super) fn lines(ctx: &Context) -> Result<Figure, String> {
     })?;
 
     let level = ctx.level();
+    let kind = if r.bands.drawn == "simultaneous" {
+        "simultaneous (Working–Hotelling, the whole line at once)"
+    } else {
+        "pointwise"
+    };
     let caption = format!(
-        "Left: each group's own least-squares line with its pointwise {level}% confidence band, over the group's covariate range. \
+        "Left: each group's own least-squares line with its {kind} {level}% confidence band, over the group's covariate range. \
          Right: the parallel-lines model, one common slope ({b}) with each line through the group's adjusted mean, \
-         and its pointwise {level}% band. {}{}",
+         and its {kind} {level}% band. {}{}",
         ctx.points_sentence(),
         if drawn < r.groups.len() {
             format!(

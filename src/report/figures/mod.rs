@@ -505,6 +505,40 @@ mod tests {
     }
 
     #[test]
+    fn simultaneous_bands_use_the_working_hotelling_value() {
+        // Issue 14 item 5: with report.bands = "simultaneous" the lines figure draws
+        // Working–Hotelling bands, whose critical value results.json holds beside the
+        // pointwise t (both checked against scipy in src/stats).
+        let plan = format!("{PLAN}[report]\nbands = \"simultaneous\"\n");
+        let plan = crate::plan::load("p.toml", &plan).unwrap();
+        let data = crate::data::load(&plan, CSV.as_bytes()).unwrap();
+        let r = crate::analysis::run(&plan, &data, Provenance::default()).unwrap();
+        assert_eq!(r.bands.drawn, "simultaneous");
+        let g = &r.bands.groups[0];
+        let df = r.groups[0].n as f64 - 2.0;
+        assert_eq!(
+            g.simultaneous,
+            Some(crate::stats::bands::working_hotelling(0.05, df))
+        );
+        assert!(g.simultaneous.unwrap() > g.pointwise.unwrap());
+        let figs = render(&r, &crate::analysis::figure_points(&data, &r)).unwrap();
+        let lines = figs.iter().find(|f| f.file == "figures/lines.svg").unwrap();
+        assert!(
+            lines.caption.contains("simultaneous (Working–Hotelling"),
+            "{}",
+            lines.caption
+        );
+        let pointwise = results();
+        let figs = render(
+            &pointwise,
+            &crate::analysis::figure_points(&data, &pointwise),
+        )
+        .unwrap();
+        let other = figs.iter().find(|f| f.file == "figures/lines.svg").unwrap();
+        assert_ne!(lines.svg, other.svg, "the bands differ");
+    }
+
+    #[test]
     fn text_helpers() {
         // Common practice, no source: digit grouping and tick labels.
         assert_eq!(thousands(0), "0");

@@ -38,6 +38,13 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
             level(r.model.slopes_alpha)
         )),
     ]);
+    if r.bands.drawn == "simultaneous" {
+        m.extend([
+            t(" The bands in the figures are simultaneous for each whole line ("),
+            cite(Work::WorkingHotelling1929),
+            t(": critical value √(2 F(1 − α; 2, df)) in place of Student's t)."),
+        ]);
+    }
     if let Some(rb) = &r.robust {
         m.extend([
             t(format!(
