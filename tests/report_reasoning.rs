@@ -34,6 +34,11 @@ fn lots(a: [f64; 3], b: [f64; 3]) -> String {
 
 /// Writes plan and data to a fresh folder, runs the plan and returns the folder.
 fn run(name: &str, data: &str, extra: &str) -> (PathBuf, Value, String) {
+    run_report(name, data, extra, "")
+}
+
+/// As [`run`], with more keys under [report].
+fn run_report(name: &str, data: &str, extra: &str, report: &str) -> (PathBuf, Value, String) {
     let dir =
         std::env::temp_dir().join(format!("slopewise-reasoning-{}-{name}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
@@ -57,7 +62,7 @@ covariate = "months"
 [report]
 out = "out"
 formats = ["markdown", "json"]
-"#
+{report}"#
     );
     std::fs::write(dir.join("plan.toml"), plan).unwrap();
     let o = Command::new(bin())
@@ -336,44 +341,7 @@ fn every_branch_is_stated_as_the_record_holds_it() {
 
 /// The unequal-slopes case with the what-if left out.
 fn run_omit(data: &str) -> (PathBuf, Value, String) {
-    let dir = std::env::temp_dir().join(format!("slopewise-reasoning-{}-omit", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    std::fs::write(dir.join("data.csv"), data).unwrap();
-    std::fs::write(
-        dir.join("plan.toml"),
-        r#"title = "Invented lots (what-if left out)"
-
-[data]
-path = "data.csv"
-
-[model]
-response = "assay"
-covariate = "month"
-group = "lot"
-
-[model.units]
-response = "%"
-covariate = "months"
-
-[report]
-out = "out"
-formats = ["markdown", "json"]
-forced_equal = "omit"
-"#,
-    )
-    .unwrap();
-    let o = Command::new(bin())
-        .arg("run")
-        .arg(dir.join("plan.toml"))
-        .output()
-        .unwrap();
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
-    let json: Value =
-        serde_json::from_str(&std::fs::read_to_string(dir.join("out/results.json")).unwrap())
-            .unwrap();
-    let report = std::fs::read_to_string(dir.join("out/report.md")).unwrap();
-    (dir, json, report)
+    run_report("omit", data, "", "forced_equal = \"omit\"\n")
 }
 
 /// A failed per-group check reaches the summary on both branches.
