@@ -24,6 +24,19 @@ pub(super) struct Difference<'a> {
     pub df: f64,
 }
 
+impl<'a> Difference<'a> {
+    /// A pair a − b.
+    pub fn new(a: &'a str, b: &'a str, difference: f64, se: Option<f64>, df: f64) -> Self {
+        Difference {
+            a,
+            b,
+            difference,
+            se,
+            df,
+        }
+    }
+}
+
 /// The tests of every pair and the overall reading.
 pub(super) fn slopes(
     pairs: &[Difference<'_>],

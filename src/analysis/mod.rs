@@ -335,27 +335,16 @@ fn procedure(
         Vec::new()
     };
     let equivalence = plan.tests.slope_margin.map(|margin| {
+        // The standard errors the gate uses: robust when the plan asks for them.
         let pairs: Vec<equivalence::Difference> = match &robust {
             Some(rb) => rb
                 .pairwise_slopes
                 .iter()
-                .map(|p| equivalence::Difference {
-                    a: &p.a,
-                    b: &p.b,
-                    difference: p.difference,
-                    se: p.se,
-                    df: p.df,
-                })
+                .map(|p| equivalence::Difference::new(&p.a, &p.b, p.difference, p.se, p.df))
                 .collect(),
             None => pairwise_slopes
                 .iter()
-                .map(|p| equivalence::Difference {
-                    a: &p.a,
-                    b: &p.b,
-                    difference: p.difference,
-                    se: p.se,
-                    df: p.df,
-                })
+                .map(|p| equivalence::Difference::new(&p.a, &p.b, p.difference, p.se, p.df))
                 .collect(),
         };
         equivalence::slopes(

@@ -71,40 +71,33 @@ pub(super) fn attach(plan: &Plan, data: &Dataset, flagged: &Flagged, results: &m
 fn changes(full: &Results, alt: &Results) -> SensitivityChanges {
     let alpha = full.model.alpha;
     let significant = |p: Option<f64>| p.map(|p| p < alpha);
-    let mut pairs = Vec::new();
-    if full.decision.homogeneous {
-        for a in &full.pairwise_adjusted {
-            if let Some(b) = alt
-                .pairwise_adjusted
+    // (a, b, adjusted p) of the leading comparison's pairs, in each run.
+    let leading = |r: &Results| -> Vec<(String, String, Option<f64>)> {
+        if full.decision.homogeneous {
+            r.pairwise_adjusted
                 .iter()
-                .find(|b| b.a == a.a && b.b == a.b)
-                && significant(a.p_adjusted) != significant(b.p_adjusted)
-            {
-                pairs.push(PairChange {
-                    a: a.a.clone(),
-                    b: a.b.clone(),
-                    before: significant(a.p_adjusted),
-                    after: significant(b.p_adjusted),
-                });
-            }
-        }
-    } else {
-        for a in &full.pairwise_slopes {
-            if let Some(b) = alt
-                .pairwise_slopes
+                .map(|p| (p.a.clone(), p.b.clone(), p.p_adjusted))
+                .collect()
+        } else {
+            r.pairwise_slopes
                 .iter()
-                .find(|b| b.a == a.a && b.b == a.b)
-                && significant(a.p_adjusted) != significant(b.p_adjusted)
-            {
-                pairs.push(PairChange {
-                    a: a.a.clone(),
-                    b: a.b.clone(),
-                    before: significant(a.p_adjusted),
-                    after: significant(b.p_adjusted),
-                });
-            }
+                .map(|p| (p.a.clone(), p.b.clone(), p.p_adjusted))
+                .collect()
         }
-    }
+    };
+    let after = leading(alt);
+    let pairs = leading(full)
+        .into_iter()
+        .filter_map(|(a, b, p)| {
+            let (_, _, q) = after.iter().find(|(x, y, _)| *x == a && *y == b)?;
+            (significant(p) != significant(*q)).then(|| PairChange {
+                a,
+                b,
+                before: significant(p),
+                after: significant(*q),
+            })
+        })
+        .collect();
     let crossing = |r: &Results| r.decision.limits.as_ref().and_then(|l| l.crossing);
     SensitivityChanges {
         gate: alt.decision.homogeneous != full.decision.homogeneous,
