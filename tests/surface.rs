@@ -991,3 +991,22 @@ fn no_progress_text_reaches_a_stderr_that_is_not_a_terminal() {
     assert!(stderr(&o).is_empty(), "{}", stderr(&o));
     let _ = fs::remove_dir_all(dir);
 }
+
+#[test]
+fn max_pairs_of_zero_is_a_plan_error_at_its_line() {
+    let dir = setup("max-pairs-zero");
+    let plan = unindent(BASE_PLAN).replace("[report]\n", "[report]\nmax_pairs = 0\n");
+    fs::write(dir.join("plan.toml"), &plan).unwrap();
+    let o = slopewise(&dir, &["run", "plan.toml"]);
+    assert!(!o.status.success());
+    let err = stderr(&o);
+    let line = plan
+        .lines()
+        .position(|l| l.starts_with("max_pairs"))
+        .unwrap()
+        + 1;
+    assert!(err.contains("report.max_pairs must be at least 1"), "{err}");
+    assert!(err.contains(&format!("plan.toml:{line}:")), "{err}");
+    assert!(!dir.join("out").exists());
+    let _ = fs::remove_dir_all(dir);
+}
