@@ -465,7 +465,11 @@ pub fn draft_plan(
     line(w, "slopes_alpha = 0.05");
     line(
         w,
-        "# Adjustment of pairwise p-values: \"none\" | \"bonferroni\" | \"holm\" | \"tukey-kramer\"",
+        "# Adjustment of pairwise p-values: \"none\" | \"bonferroni\" | \"holm\" | \"tukey-kramer\",",
+    );
+    line(
+        w,
+        "# or \"against-reference\": each group against the first level (Dunnett 1955)",
     );
     line(w, "comparisons = \"holm\"");
     line(

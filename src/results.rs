@@ -13,8 +13,8 @@ mod evidence;
 mod finite;
 pub use decision::{Decision, DecisionModels, Finding, GateReading, LimitsReading};
 pub use evidence::{
-    BandCritical, Bands, Equivalence, EquivalencePair, NextSeason, Robust, RobustDifference,
-    RobustMean, RobustWald,
+    BandCritical, Bands, Equivalence, EquivalencePair, ManyToOne, NextSeason, Robust,
+    RobustDifference, RobustMean, RobustWald, SimultaneousFamily,
 };
 pub use finite::first_non_finite;
 
@@ -53,8 +53,13 @@ pub struct Results {
     pub one_line: OneLine,
     /// Adjusted means from the common-slope model.
     pub adjusted_means: Vec<AdjustedMean>,
-    /// Differences of adjusted means for every pair of levels.
+    /// Differences of adjusted means for every pair of levels (under many-to-one
+    /// comparisons, every level against the first).
     pub pairwise_adjusted: Vec<MeanPair>,
+    /// The critical values and errors of the many-to-one families, under
+    /// `comparisons = "against-reference"`.
+    #[serde(default)]
+    pub many_to_one: Option<ManyToOne>,
     /// Where two groups differ along the covariate, when slopes differ.
     pub regions: Vec<Region>,
     /// Group differences at chosen covariate values, when slopes differ.
@@ -303,6 +308,10 @@ pub struct SlopePair {
     /// Interval for the difference at 1 − alpha (pooled, unadjusted).
     #[serde(default)]
     pub ci: Option<[f64; 2]>,
+    /// Under many-to-one comparisons: the interval simultaneous over the family,
+    /// d ± c·se with c from `many_to_one.slopes`.
+    #[serde(default)]
+    pub ci_simultaneous: Option<[f64; 2]>,
     /// The unpooled form, for groups whose residual spreads differ.
     pub welch: WelchTest,
 }
@@ -426,6 +435,10 @@ pub struct MeanPair {
     pub p_adjusted: Option<f64>,
     /// Tukey–Kramer p-value: studentized range with k groups at q = |t|·√2.
     pub p_tukey: Option<f64>,
+    /// Under many-to-one comparisons: the interval simultaneous over the family,
+    /// d ± c·se with c from `many_to_one.adjusted`.
+    #[serde(default)]
+    pub ci_simultaneous: Option<[f64; 2]>,
     /// For a log response: the ratio of the two geometric means and its interval.
     #[serde(default)]
     pub ratio: Option<BackTransformed>,

@@ -921,3 +921,109 @@ fn bad_limits_keys_point_at_their_value() {
             .run();
     }
 }
+
+// ---- many-to-one comparisons ----------------------------------------------------
+
+/// `BASE_PLAN` with many-to-one comparisons; `comparisons` sits at line 13, column 15,
+/// and with `levels` the reference `east` at line 10, column 11.
+fn many_to_one_plan(levels: bool) -> String {
+    let model = if levels {
+        "group = \"plot\"\n    levels = [\"east\", \"north\", \"ridge\", \"south\"]\n"
+    } else {
+        "group = \"plot\"\n\n"
+    };
+    BASE_PLAN.replace("group = \"plot\"\n", model).replace(
+        "[report]\n",
+        "[tests]\n    comparisons = \"against-reference\"\n\n    [report]\n",
+    )
+}
+
+#[test]
+fn many_to_one_with_one_usable_group_points_at_the_comparisons() {
+    // Only `north` can carry a line: there is nothing to compare with it.
+    let data = THREE_PLOTS
+        .lines()
+        .filter(|l| !l.starts_with("ridge") && !l.starts_with("south"))
+        .collect::<Vec<_>>()
+        .join("\n");
+    Test::new("many_to_one_one_group")
+        .plan(&many_to_one_plan(false))
+        .data(&format!("{data}\nsouth,4.0,1.0\n"))
+        .fails()
+        .stderr_has(&[
+            "only one group (`north`) has enough usable rows to fit a line; comparing lines needs at least two",
+            "--> plan.toml:13:15",
+            "many-to-one comparisons chosen here",
+        ])
+        .run();
+}
+
+#[test]
+fn many_to_one_whose_reference_is_left_out_is_an_error_at_the_reference() {
+    // `east`, named first in model.levels, has two usable rows: the next level must
+    // not silently become the reference.
+    Test::new("many_to_one_reference_out")
+        .plan(&many_to_one_plan(true))
+        .data(&format!("{THREE_PLOTS}east,5.0,1.40\neast,6.0,1.60\n"))
+        .fails()
+        .stderr_has(&[
+            "comparisons = \"against-reference\" compares every group with the first level, `east`, but it has 2 usable rows; a line needs at least 3, so there is no reference line",
+            "--> plan.toml:10:11",
+            "the reference, named first here",
+            "help: put a group with at least 3 usable rows and two covariate values first in model.levels",
+        ])
+        .run();
+}
+
+#[test]
+fn many_to_one_is_not_a_choice_misspelt() {
+    Test::new("many_to_one_misspelt")
+        .plan(&many_to_one_plan(false).replace("against-reference", "against-control"))
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&["against-reference", "--> plan.toml:13:15"])
+        .run();
+}
+
+#[test]
+fn many_to_one_beyond_ten_groups_takes_the_bonferroni_bound_and_says_so() {
+    // Eleven invented plots: ten differences, one more than the multivariate t is
+    // integrated for (MAX_MANY_TO_ONE_GROUPS = 10).
+    let mut data = String::from("plot,length_cm,mass_g\n");
+    for g in 0..11 {
+        for i in 0..5 {
+            let x = 4.0 + 1.5 * i as f64;
+            let e = [0.03, -0.02, 0.01, -0.04, 0.02][(i + g) % 5];
+            data.push_str(&format!(
+                "p{g:02},{x},{}\n",
+                0.4 + 0.02 * g as f64 + 0.25 * x + e
+            ));
+        }
+    }
+    let out = Test::new("many_to_one_eleven")
+        .plan(&many_to_one_plan(false))
+        .data(&data)
+        .succeeds()
+        .run();
+    let r = out.json("out/results.json");
+    let family = &r["many_to_one"]["adjusted"];
+    assert_eq!(family["method"], "bonferroni");
+    let pairs = r["pairwise_adjusted"].as_array().unwrap();
+    assert_eq!(pairs.len(), 10);
+    for p in pairs {
+        let single = p["p_value"].as_f64().unwrap();
+        let adjusted = p["p_adjusted"].as_f64().unwrap();
+        // Bonferroni (Dunn 1961): p·m capped at 1.
+        assert_eq!(adjusted, (single * 10.0).min(1.0), "{p}");
+        assert_eq!(p["b"], "p00");
+    }
+    let warnings = r["warnings"].to_string();
+    assert!(
+        warnings.contains("With 11 groups the many-to-one p-values and simultaneous intervals are the Bonferroni bound"),
+        "{warnings}"
+    );
+    assert!(
+        out.read("out/report.md")
+            .contains("they are the Bonferroni bound, conservative")
+    );
+}

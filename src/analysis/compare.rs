@@ -9,11 +9,13 @@
 //! §18.3). The group effect is the extra-sum-of-squares F of one line against
 //! parallel lines.
 
-use super::pairwise::{adjust_pairs, tukey_kramer};
+use super::pairwise::{
+    adjust_pairs, covariance, many_to_one, pair_indices, simultaneous_interval, tukey_kramer,
+};
 use super::{interval, ratio};
 use crate::fit::{CommonSlopeFit, Moments, OneLineFit};
 use crate::plan::Comparisons;
-use crate::results::{AdjustedMean, CommonSlope, GroupEffect, MeanPair};
+use crate::results::{AdjustedMean, CommonSlope, GroupEffect, MeanPair, SimultaneousFamily};
 use crate::stats::dist::t_two_sided;
 use crate::stats::nested_f::{NestedF, nested_f};
 
@@ -89,39 +91,71 @@ pub(super) fn adjusted_means(
         .collect()
 }
 
-/// Every pairwise difference of adjusted means, with adjusted p-values.
+/// Every pairwise difference of adjusted means, with adjusted p-values; under
+/// many-to-one comparisons every level against the first, simultaneous over the
+/// family, whose critical value comes back beside the pairs.
 pub(super) fn pairwise_adjusted(
     levels: &[&str],
     moments: &[Moments],
     fit: &CommonSlopeFit,
     alpha: f64,
     method: Comparisons,
-) -> Vec<MeanPair> {
+) -> (Vec<MeanPair>, Option<SimultaneousFamily>) {
     let s2 = fit.sigma2();
+    let indices = pair_indices(moments.len(), method);
     let mut pairs = Vec::new();
-    for i in 0..moments.len() {
-        for j in i + 1..moments.len() {
-            let (a, b) = (&moments[i], &moments[j]);
-            let dx = a.mean_x - b.mean_x;
-            let difference = a.mean_y - b.mean_y - fit.slope * dx;
-            let se = s2.map(|s2| {
-                (s2 * (1.0 / a.n as f64 + 1.0 / b.n as f64 + dx * dx / fit.sxx_within)).sqrt()
-            });
-            let t = ratio(difference, se);
-            pairs.push(MeanPair {
-                ratio: None,
-                a: levels[i].to_string(),
-                b: levels[j].to_string(),
-                difference,
-                se,
-                ci: interval(difference, se, fit.df, alpha),
-                t,
-                df: fit.df,
-                p_value: t.map(|t| t_two_sided(t, fit.df)),
-                p_adjusted: None,
-                p_tukey: t.and_then(|t| tukey_kramer(t, moments.len(), fit.df)),
-            });
+    for &(i, j) in &indices {
+        let (a, b) = (&moments[i], &moments[j]);
+        let dx = a.mean_x - b.mean_x;
+        let difference = a.mean_y - b.mean_y - fit.slope * dx;
+        let se = s2.map(|s2| {
+            (s2 * (1.0 / a.n as f64 + 1.0 / b.n as f64 + dx * dx / fit.sxx_within)).sqrt()
+        });
+        let t = ratio(difference, se);
+        pairs.push(MeanPair {
+            ratio: None,
+            a: levels[i].to_string(),
+            b: levels[j].to_string(),
+            difference,
+            se,
+            ci: interval(difference, se, fit.df, alpha),
+            t,
+            df: fit.df,
+            p_value: t.map(|t| t_two_sided(t, fit.df)),
+            p_adjusted: None,
+            // Tukey–Kramer speaks of every pair; a many-to-one family has its own.
+            p_tukey: t
+                .filter(|_| method != Comparisons::AgainstReference)
+                .and_then(|t| tukey_kramer(t, moments.len(), fit.df)),
+            ci_simultaneous: None,
+        });
+    }
+    if method == Comparisons::AgainstReference {
+        // Differences against one reference share its mean and the common slope:
+        // Cov(d_i, d_j) = s² (1/n_0 + (x̄_i − x̄_0)(x̄_j − x̄_0)/Σ Sxx) off the
+        // diagonal, plus s²/n_i on it (Dunnett 1955 with the covariate's term).
+        let reference = &moments[0];
+        let cov = s2.map(|s2| {
+            covariance(&indices, |i, j| {
+                let (di, dj) = (
+                    moments[i].mean_x - reference.mean_x,
+                    moments[j].mean_x - reference.mean_x,
+                );
+                let own = if i == j {
+                    1.0 / moments[i].n as f64
+                } else {
+                    0.0
+                };
+                s2 * (own + 1.0 / reference.n as f64 + di * dj / fit.sxx_within)
+            })
+        });
+        let t: Vec<Option<f64>> = pairs.iter().map(|p| p.t).collect();
+        let (p, family) = many_to_one(&t, cov, fit.df, alpha);
+        for (pair, p) in pairs.iter_mut().zip(p) {
+            pair.p_adjusted = p;
+            pair.ci_simultaneous = simultaneous_interval(pair.difference, pair.se, &family);
         }
+        return (pairs, Some(family));
     }
     adjust_pairs(
         &mut pairs,
@@ -130,5 +164,5 @@ pub(super) fn pairwise_adjusted(
         |p| p.p_value,
         |p, v| p.p_adjusted = v,
     );
-    pairs
+    (pairs, None)
 }

@@ -13,6 +13,17 @@ pub enum AnalysisError {
         /// Groups left out, with why.
         excluded: Vec<(String, String)>,
     },
+    /// Many-to-one comparisons name the first level as the reference, and it cannot
+    /// carry a line.
+    #[error(
+        "comparisons = \"against-reference\" compares every group with the first level, `{reference}`, but it {why}, so there is no reference line"
+    )]
+    ReferenceExcluded {
+        /// The first level.
+        reference: String,
+        /// Why it was left out.
+        why: String,
+    },
     /// Values so large or so small that sums of squares leave floating point.
     #[error(
         "the values of `{column}` work at a scale of {magnitude:e}, beyond what sums of squares hold without overflow or underflow (values up to 1e150 and spreads from 1e-150 are supported)"
@@ -60,6 +71,9 @@ impl AnalysisError {
         match self {
             AnalysisError::TooFewGroups { .. } => Diagnostic::new(self.to_string()).help(
                 "each group needs at least 3 usable rows with at least two different covariate values; check model.group, data.keep and data.missing",
+            ),
+            AnalysisError::ReferenceExcluded { .. } => Diagnostic::new(self.to_string()).help(
+                "put a group with at least 3 usable rows and two covariate values first in model.levels, or choose another tests.comparisons",
             ),
             AnalysisError::Magnitude { magnitude, .. } if *magnitude < 1.0 => {
                 Diagnostic::new(self.to_string()).help(

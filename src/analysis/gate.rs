@@ -8,12 +8,14 @@
 //! variance with Welch–Satterthwaite degrees of freedom (Welch 1947; Satterthwaite
 //! 1946), for groups whose residual spreads differ.
 
-use super::pairwise::{adjust_pairs, tukey_kramer, welch};
+use super::pairwise::{
+    adjust_pairs, covariance, many_to_one, pair_indices, simultaneous_interval, tukey_kramer, welch,
+};
 use super::{interval, ratio};
 use crate::fit::{CommonSlopeFit, SeparateFit};
 use crate::number::sig;
 use crate::plan::Comparisons;
-use crate::results::{EqualSlopes, GroupLineResult, SlopePair};
+use crate::results::{EqualSlopes, GroupLineResult, SimultaneousFamily, SlopePair};
 use crate::stats::dist::t_two_sided;
 use crate::stats::nested_f::{NestedF, nested_f};
 
@@ -98,34 +100,59 @@ pub(super) fn equal_slopes(
     }
 }
 
-/// Every pair of slopes, pooled and unpooled, with adjusted p-values.
+/// Every pair of slopes, pooled and unpooled, with adjusted p-values; under
+/// many-to-one comparisons every level against the first, simultaneous over the
+/// family, whose critical value comes back beside the pairs.
 pub(super) fn pairwise_slopes(
     levels: &[&str],
     fit: &SeparateFit,
     method: Comparisons,
     alpha: f64,
-) -> Vec<SlopePair> {
+) -> (Vec<SlopePair>, Option<SimultaneousFamily>) {
     let s2 = fit.sigma2();
+    let indices = pair_indices(fit.lines.len(), method);
     let mut pairs = Vec::new();
-    for i in 0..fit.lines.len() {
-        for j in i + 1..fit.lines.len() {
-            let (a, b) = (&fit.lines[i], &fit.lines[j]);
-            let difference = a.slope - b.slope;
-            let se = s2.map(|s2| (s2 * (1.0 / a.moments.sxx + 1.0 / b.moments.sxx)).sqrt());
-            let t = ratio(difference, se);
-            pairs.push(SlopePair {
-                a: levels[i].to_string(),
-                b: levels[j].to_string(),
-                difference,
-                se,
-                t,
-                df: fit.df,
-                p_value: t.map(|t| t_two_sided(t, fit.df)),
-                p_adjusted: None,
-                ci: interval(difference, se, fit.df, alpha),
-                welch: welch(difference, a.slope_se(), b.slope_se(), a.df, b.df, alpha),
-            });
+    for &(i, j) in &indices {
+        let (a, b) = (&fit.lines[i], &fit.lines[j]);
+        let difference = a.slope - b.slope;
+        let se = s2.map(|s2| (s2 * (1.0 / a.moments.sxx + 1.0 / b.moments.sxx)).sqrt());
+        let t = ratio(difference, se);
+        pairs.push(SlopePair {
+            a: levels[i].to_string(),
+            b: levels[j].to_string(),
+            difference,
+            se,
+            t,
+            df: fit.df,
+            p_value: t.map(|t| t_two_sided(t, fit.df)),
+            p_adjusted: None,
+            ci: interval(difference, se, fit.df, alpha),
+            ci_simultaneous: None,
+            welch: welch(difference, a.slope_se(), b.slope_se(), a.df, b.df, alpha),
+        });
+    }
+    if method == Comparisons::AgainstReference {
+        // Slopes of different groups are independent, so differences against one
+        // reference share only its variance: Cov = s²/Sxx_0 off the diagonal,
+        // s² (1/Sxx_i + 1/Sxx_0) on it.
+        let reference = fit.lines[0].moments.sxx;
+        let cov = s2.map(|s2| {
+            covariance(&indices, |i, j| {
+                let own = if i == j {
+                    1.0 / fit.lines[i].moments.sxx
+                } else {
+                    0.0
+                };
+                s2 * (own + 1.0 / reference)
+            })
+        });
+        let t: Vec<Option<f64>> = pairs.iter().map(|p| p.t).collect();
+        let (p, family) = many_to_one(&t, cov, fit.df, alpha);
+        for (pair, p) in pairs.iter_mut().zip(p) {
+            pair.p_adjusted = p;
+            pair.ci_simultaneous = simultaneous_interval(pair.difference, pair.se, &family);
         }
+        return (pairs, Some(family));
     }
     let k = fit.lines.len();
     adjust_pairs(
@@ -135,7 +162,7 @@ pub(super) fn pairwise_slopes(
         |p| p.p_value,
         |p, v| p.p_adjusted = v,
     );
-    pairs
+    (pairs, None)
 }
 
 /// Warns when residual spreads differ enough that the pooled slope tests mislead.

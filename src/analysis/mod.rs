@@ -262,6 +262,28 @@ fn offset_precision_warning(
 }
 
 /// The procedure proper; also returns the rows beyond the influence cut-offs.
+/// Under many-to-one comparisons the first level is the reference: if it was left
+/// out, the next level must not silently take its place.
+fn reference_kept(
+    plan: &Plan,
+    data: &Dataset,
+    eligible: &eligible::Eligible,
+) -> Result<(), AnalysisError> {
+    if plan.tests.comparisons != crate::plan::Comparisons::AgainstReference {
+        return Ok(());
+    }
+    let Some(first) = data.groups.first() else {
+        return Ok(());
+    };
+    match eligible.excluded.iter().find(|e| e.level == first.level) {
+        Some(e) => Err(AnalysisError::ReferenceExcluded {
+            reference: e.level.clone(),
+            why: e.reason.clone(),
+        }),
+        None => Ok(()),
+    }
+}
+
 /// `adjust_at` overrides the plan's adjustment point (the sensitivity rerun holds
 /// the full data's).
 fn procedure(
@@ -272,6 +294,7 @@ fn procedure(
 ) -> Result<(Results, influence::Flagged), AnalysisError> {
     let mut warnings = Vec::new();
     let eligible = eligible::select(data, &mut warnings)?;
+    reference_kept(plan, data, &eligible)?;
     check_magnitudes(plan, &eligible.groups)?;
     let moments: Vec<_> = eligible.groups.iter().map(|g| g.moments).collect();
     if let Some(w) = offset_precision_warning(&plan.model.covariate, &moments) {
@@ -299,7 +322,7 @@ fn procedure(
     // k groups give k(k − 1)/2 pairs: beyond the plan's cap none is listed, so the
     // memory stays bounded by the groups, not their square.
     let k = levels.len() as u64;
-    let pairs = k * k.saturating_sub(1) / 2;
+    let pairs = pairwise::pair_count(k, plan.tests.comparisons);
     let list_pairs = pairs <= plan.report.max_pairs;
     if !list_pairs {
         warnings.push(format!(
@@ -307,7 +330,7 @@ fn procedure(
             plan.report.max_pairs
         ));
     }
-    let robust = robust::compute(
+    let robust_and_families = robust::compute(
         &robust::Settings {
             kind: plan.tests.covariance,
             alpha,
@@ -322,6 +345,10 @@ fn procedure(
         common,
         equal_slopes.homogeneous,
     );
+    let (robust, robust_families) = match robust_and_families {
+        Some((r, families)) => (Some(r), families),
+        None => (None, [None, None]),
+    };
     // With a robust covariance the gate decides on its Wald test (when it can be
     // computed); the classical F stays in `equal_slopes` for the reader.
     if let Some(rb) = &robust
@@ -329,10 +356,10 @@ fn procedure(
     {
         equal_slopes.homogeneous = rb.equal_slopes.homogeneous;
     }
-    let pairwise_slopes = if list_pairs {
+    let (pairwise_slopes, slope_family) = if list_pairs {
         gate::pairwise_slopes(&levels, separate, plan.tests.comparisons, alpha)
     } else {
-        Vec::new()
+        (Vec::new(), None)
     };
     let equivalence = plan.tests.slope_margin.map(|margin| {
         // The standard errors the gate uses: robust when the plan asks for them.
@@ -366,12 +393,40 @@ fn procedure(
     let common_slope = compare::common_slope(common, alpha);
     let group_effect = compare::group_effect(common, one, fits.floor, &mut warnings);
     let adjusted_means = compare::adjusted_means(&levels, &moments, common, adjust_at, alpha);
-    let pairwise_adjusted = if list_pairs {
+    let (pairwise_adjusted, adjusted_family) = if list_pairs {
         compare::pairwise_adjusted(&levels, &moments, common, alpha, plan.tests.comparisons)
     } else {
-        Vec::new()
+        (Vec::new(), None)
     };
-    if !pairwise::tukey_feasible(levels.len()) {
+    // Under many-to-one comparisons both families carry their critical values.
+    let many_to_one = match (slope_family, adjusted_family) {
+        (Some(slopes), Some(adjusted)) => {
+            let [robust_slopes, robust_adjusted] = robust_families;
+            Some(crate::results::ManyToOne {
+                reference: levels[0].to_string(),
+                level: 1.0 - alpha,
+                slopes,
+                adjusted,
+                robust_slopes,
+                robust_adjusted,
+            })
+        }
+        _ => None,
+    };
+    if plan.tests.comparisons == crate::plan::Comparisons::AgainstReference
+        && levels.len() > pairwise::MAX_MANY_TO_ONE_GROUPS
+        && list_pairs
+    {
+        warnings.push(format!(
+            "With {} groups the many-to-one p-values and simultaneous intervals are the Bonferroni bound over the {} differences (conservative): slopewise takes them from the multivariate t for at most {} groups.",
+            levels.len(),
+            levels.len() - 1,
+            pairwise::MAX_MANY_TO_ONE_GROUPS
+        ));
+    }
+    if plan.tests.comparisons != crate::plan::Comparisons::AgainstReference
+        && !pairwise::tukey_feasible(levels.len())
+    {
         warnings.push(format!(
             "Tukey–Kramer p-values are left out (null): with {} groups there are {} pairs, and slopewise computes them for at most {} groups. Holm or Bonferroni adjustment covers any number of pairs.",
             levels.len(),
@@ -422,6 +477,7 @@ fn procedure(
         influence,
     };
 
+    let pair_indices = pairwise::pair_indices(levels.len(), plan.tests.comparisons);
     let (regions, differences_at) = if homogeneous || !list_pairs {
         (Vec::new(), Vec::new())
     } else {
@@ -461,8 +517,9 @@ fn procedure(
                 plan.tests.regions,
                 all.mean_x,
                 [all.min_x, all.max_x],
+                &pair_indices,
             ),
-            regions::differences_at(&levels, separate, alpha, &at),
+            regions::differences_at(&levels, separate, alpha, &at, &pair_indices),
         )
     };
 
@@ -547,6 +604,7 @@ fn procedure(
         one_line: one_line(one),
         adjusted_means,
         pairwise_adjusted,
+        many_to_one,
         regions,
         differences_at,
         effect_sizes,

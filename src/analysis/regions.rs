@@ -90,7 +90,8 @@ impl PairLine {
     }
 }
 
-/// Johnson–Neyman regions for every pair, clipped to `range`.
+/// Johnson–Neyman regions for each pair of `pairs` (level indices a, b), clipped to
+/// `range`.
 pub(super) fn regions(
     levels: &[&str],
     fit: &SeparateFit,
@@ -98,6 +99,7 @@ pub(super) fn regions(
     form: Regions,
     centre: f64,
     range: [f64; 2],
+    pairs: &[(usize, usize)],
 ) -> Vec<Region> {
     let Some(s2) = fit.sigma2() else {
         return Vec::new();
@@ -107,21 +109,19 @@ pub(super) fn regions(
         Regions::Simultaneous => (2.0 * f_quantile(1.0 - alpha, 2.0, fit.df)).sqrt(),
     };
     let mut out = Vec::new();
-    for i in 0..fit.lines.len() {
-        for j in i + 1..fit.lines.len() {
-            let (a, b) = (&fit.lines[i], &fit.lines[j]);
-            let pair = PairLine::new(&a.moments, a.slope, &b.moments, b.slope, s2, centre);
-            let bounds = pair.bounds(c);
-            out.push(Region {
-                a: levels[i].to_string(),
-                b: levels[j].to_string(),
-                method: form.method().to_string(),
-                critical_t: c,
-                significant: clip(&pair, &bounds, c, range),
-                bounds,
-                observed_range: range,
-            });
-        }
+    for &(i, j) in pairs {
+        let (a, b) = (&fit.lines[i], &fit.lines[j]);
+        let pair = PairLine::new(&a.moments, a.slope, &b.moments, b.slope, s2, centre);
+        let bounds = pair.bounds(c);
+        out.push(Region {
+            a: levels[i].to_string(),
+            b: levels[j].to_string(),
+            method: form.method().to_string(),
+            critical_t: c,
+            significant: clip(&pair, &bounds, c, range),
+            bounds,
+            observed_range: range,
+        });
     }
     out
 }
@@ -146,17 +146,18 @@ fn clip(pair: &PairLine, bounds: &[f64], c: f64, range: [f64; 2]) -> Vec<[f64; 2
     out
 }
 
-/// Every pair's difference at each of `at`, with its interval at 1 − alpha.
+/// Each pair of `pairs` (level indices a, b): its difference at each of `at`, with its interval at 1 − alpha.
 pub(super) fn differences_at(
     levels: &[&str],
     fit: &SeparateFit,
     alpha: f64,
     at: &[f64],
+    pairs: &[(usize, usize)],
 ) -> Vec<DifferenceAt> {
     let s2 = fit.sigma2().unwrap_or(f64::NAN);
     let mut out = Vec::new();
-    for i in 0..fit.lines.len() {
-        for j in i + 1..fit.lines.len() {
+    for &(i, j) in pairs {
+        {
             let (a, b) = (&fit.lines[i], &fit.lines[j]);
             for &x in at {
                 let pair = PairLine::new(&a.moments, a.slope, &b.moments, b.slope, s2, x);

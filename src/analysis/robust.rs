@@ -19,11 +19,11 @@
 //! separate lines, 1/n_g + (x − x̄_g)²/Σ Sxx for parallel lines.
 
 use super::interval;
-use super::pairwise::adjust_pairs;
+use super::pairwise::{adjust_pairs, covariance, many_to_one, pair_indices, simultaneous_interval};
 use crate::data::GroupData;
 use crate::fit::{CommonSlopeFit, SeparateFit};
 use crate::plan::{Comparisons, Covariance};
-use crate::results::{Robust, RobustDifference, RobustMean, RobustWald};
+use crate::results::{Robust, RobustDifference, RobustMean, RobustWald, SimultaneousFamily};
 use crate::stats::dist::{f_sf, t_two_sided};
 
 /// The robust weight of one row: its squared residual scaled by the HC form.
@@ -47,7 +47,8 @@ pub(super) struct Settings {
     pub list_pairs: bool,
 }
 
-/// The robust results, or `None` for the classical covariance.
+/// The robust results (with the many-to-one families' critical values, slopes then
+/// adjusted means, under `against-reference`), or `None` for the classical covariance.
 pub(super) fn compute(
     s: &Settings,
     levels: &[&str],
@@ -55,7 +56,7 @@ pub(super) fn compute(
     separate: &SeparateFit,
     common: &CommonSlopeFit,
     classical_homogeneous: bool,
-) -> Option<Robust> {
+) -> Option<(Robust, [Option<SimultaneousFamily>; 2])> {
     if s.kind == Covariance::Classical {
         return None;
     }
@@ -88,18 +89,30 @@ pub(super) fn compute(
         s.slopes_alpha,
     );
 
+    let indices = pair_indices(k, s.comparisons);
+    let indices: &[(usize, usize)] = if s.list_pairs { &indices } else { &[] };
     let mut pairwise_slopes = Vec::new();
-    for i in (0..k).filter(|_| s.list_pairs) {
-        for j in i + 1..k {
-            let d = separate.lines[i].slope - separate.lines[j].slope;
-            let se = match (slope_var[i], slope_var[j]) {
-                (Some(a), Some(b)) => Some((a + b).sqrt()),
-                _ => None,
-            };
-            pairwise_slopes.push(difference(levels[i], levels[j], d, se, df_sep, s.alpha));
-        }
+    for &(i, j) in indices {
+        let d = separate.lines[i].slope - separate.lines[j].slope;
+        let se = match (slope_var[i], slope_var[j]) {
+            (Some(a), Some(b)) => Some((a + b).sqrt()),
+            _ => None,
+        };
+        pairwise_slopes.push(difference(levels[i], levels[j], d, se, df_sep, s.alpha));
     }
-    adjust(&mut pairwise_slopes, s.comparisons);
+    // Against one reference, independent slopes share only its variance.
+    let slope_cov = slope_var
+        .iter()
+        .copied()
+        .collect::<Option<Vec<f64>>>()
+        .map(|v| covariance(indices, |i, j| (if i == j { v[i] } else { 0.0 }) + v[0]));
+    let robust_slopes = adjust(
+        &mut pairwise_slopes,
+        s.comparisons,
+        slope_cov,
+        df_sep,
+        s.alpha,
+    );
 
     // Parallel lines: per-group sums of the weights.
     let p_com = k as f64 + 1.0;
@@ -144,23 +157,47 @@ pub(super) fn compute(
         })
         .collect();
     let mut pairwise_adjusted = Vec::new();
-    for i in (0..k).filter(|_| s.list_pairs) {
-        for j in i + 1..k {
-            let (ma, mb) = (&groups[i].moments, &groups[j].moments);
-            let (na, nb) = (ma.n as f64, mb.n as f64);
-            let lambda = mb.mean_x - ma.mean_x;
-            let d = ma.mean_y - mb.mean_y + common.slope * lambda;
-            let var = sums[i][0] / (na * na)
-                + sums[j][0] / (nb * nb)
-                + 2.0 * lambda * (sums[i][1] / na - sums[j][1] / nb)
-                + lambda * lambda * slope_sum;
-            let se = finite(var).map(f64::sqrt);
-            pairwise_adjusted.push(difference(levels[i], levels[j], d, se, df_com, s.alpha));
-        }
+    for &(i, j) in indices {
+        let (ma, mb) = (&groups[i].moments, &groups[j].moments);
+        let (na, nb) = (ma.n as f64, mb.n as f64);
+        let lambda = mb.mean_x - ma.mean_x;
+        let d = ma.mean_y - mb.mean_y + common.slope * lambda;
+        let var = sums[i][0] / (na * na)
+            + sums[j][0] / (nb * nb)
+            + 2.0 * lambda * (sums[i][1] / na - sums[j][1] / nb)
+            + lambda * lambda * slope_sum;
+        let se = finite(var).map(f64::sqrt);
+        pairwise_adjusted.push(difference(levels[i], levels[j], d, se, df_com, s.alpha));
     }
-    adjust(&mut pairwise_adjusted, s.comparisons);
+    // Against reference 0 with λ_i = x̄_0 − x̄_i, the sum over rows of the two
+    // differences' weights times ω: δ_ij A_i/n_i² + A_0/n_0² + λ_j B_i/n_i +
+    // λ_i B_j/n_j − (λ_i + λ_j) B_0/n_0 + λ_i λ_j Σ C (the diagonal is the variance
+    // above).
+    let mean_cov = {
+        let n = |g: usize| groups[g].moments.n as f64;
+        let lambda = |g: usize| groups[0].moments.mean_x - groups[g].moments.mean_x;
+        covariance(indices, |i, j| {
+            let own = if i == j {
+                sums[i][0] / (n(i) * n(i))
+            } else {
+                0.0
+            };
+            own + sums[0][0] / (n(0) * n(0))
+                + lambda(j) * sums[i][1] / n(i)
+                + lambda(i) * sums[j][1] / n(j)
+                - (lambda(i) + lambda(j)) * sums[0][1] / n(0)
+                + lambda(i) * lambda(j) * slope_sum
+        })
+    };
+    let robust_adjusted = adjust(
+        &mut pairwise_adjusted,
+        s.comparisons,
+        Some(mean_cov).filter(|c| c.iter().flatten().all(|v| v.is_finite())),
+        df_com,
+        s.alpha,
+    );
 
-    Some(Robust {
+    let robust = Robust {
         covariance: s.kind.name().to_string(),
         disagree: equal_slopes.p_value.is_some()
             && equal_slopes.homogeneous != classical_homogeneous,
@@ -169,7 +206,8 @@ pub(super) fn compute(
         pairwise_slopes,
         adjusted_means,
         pairwise_adjusted,
-    })
+    };
+    Some((robust, [robust_slopes, robust_adjusted]))
 }
 
 /// The Wald test of equal slopes from independent slopes and their variances.
@@ -213,12 +251,29 @@ fn difference(a: &str, b: &str, d: f64, se: Option<f64>, df: f64, alpha: f64) ->
         p_value: t.map(|t| t_two_sided(t, df)),
         p_adjusted: None,
         ci: interval(d, se, df, alpha),
+        ci_simultaneous: None,
     }
 }
 
 /// The plan's adjustment; Tukey–Kramer assumes one pooled variance, so robust
-/// differences take Holm in its place.
-fn adjust(pairs: &mut [RobustDifference], method: Comparisons) {
+/// differences take Holm in its place. Many-to-one families are simultaneous over
+/// the robust correlation `cov` of the differences; their family comes back.
+fn adjust(
+    pairs: &mut [RobustDifference],
+    method: Comparisons,
+    cov: Option<Vec<Vec<f64>>>,
+    df: f64,
+    alpha: f64,
+) -> Option<SimultaneousFamily> {
+    if method == Comparisons::AgainstReference {
+        let t: Vec<Option<f64>> = pairs.iter().map(|p| p.t).collect();
+        let (p, family) = many_to_one(&t, cov, df, alpha);
+        for (pair, p) in pairs.iter_mut().zip(p) {
+            pair.p_adjusted = p;
+            pair.ci_simultaneous = simultaneous_interval(pair.difference, pair.se, &family);
+        }
+        return Some(family);
+    }
     let method = match method {
         Comparisons::TukeyKramer => Comparisons::Holm,
         m => m,
@@ -230,4 +285,5 @@ fn adjust(pairs: &mut [RobustDifference], method: Comparisons) {
         |p| p.p_value,
         |p, v| p.p_adjusted = v,
     );
+    None
 }

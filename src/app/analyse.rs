@@ -112,13 +112,36 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
     let results = analysis::run(plan, &dataset, provenance).map_err(|e| {
         let mut d = e.diagnostic();
         d.file = Some(data_file.clone());
-        d
+        reference_snippet(d, &e, lp)
     })?;
     Ok(Analysed {
         dataset,
         results,
         data_path: data_path.to_path_buf(),
     })
+}
+
+/// Under many-to-one comparisons, too few groups or a reference that cannot carry a
+/// line is also the plan's doing: point at the reference in `model.levels` when it is
+/// named there, else at `tests.comparisons`.
+fn reference_snippet(
+    mut d: Diagnostic,
+    e: &analysis::AnalysisError,
+    lp: &LoadedPlan,
+) -> Diagnostic {
+    use analysis::AnalysisError::{ReferenceExcluded, TooFewGroups};
+    let plan = &lp.plan;
+    if plan.tests.comparisons != crate::plan::Comparisons::AgainstReference
+        || !matches!(e, TooFewGroups { .. } | ReferenceExcluded { .. })
+    {
+        return d;
+    }
+    if let (ReferenceExcluded { .. }, Some(span)) = (e, plan.spans.levels.first()) {
+        d = d.at(lp.snippet(span.clone(), "the reference, named first here"));
+    } else if let Some(span) = &plan.spans.comparisons {
+        d = d.at(lp.snippet(span.clone(), "many-to-one comparisons chosen here"));
+    }
+    d
 }
 
 /// The data path that names standard input.

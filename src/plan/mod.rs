@@ -247,6 +247,8 @@ pub struct PlanSpans {
     pub response_transform: Range<usize>,
     /// `model.transform.covariate`, or the `[model]` table when absent.
     pub covariate_transform: Range<usize>,
+    /// `tests.comparisons`, when given.
+    pub comparisons: Option<Range<usize>>,
 }
 
 /// Default cell texts read as missing.
@@ -735,6 +737,10 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
             keep_columns,
             response_transform: rt_span,
             covariate_transform: ct_span,
+            comparisons: raw
+                .tests
+                .as_ref()
+                .and_then(|t| t.get_ref().comparisons.as_ref().map(Spanned::span)),
         },
     })
 }

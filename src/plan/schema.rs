@@ -487,6 +487,9 @@ pub enum Comparisons {
     Holm,
     /// Tukey–Kramer: the studentized range over all k groups.
     TukeyKramer,
+    /// Many-to-one (Dunnett 1955): every group against the first level, with
+    /// simultaneous p-values and intervals from the multivariate t.
+    AgainstReference,
 }
 
 /// Which Johnson–Neyman regions to report when slopes differ.
@@ -517,6 +520,7 @@ impl Comparisons {
             Comparisons::Bonferroni => "bonferroni",
             Comparisons::Holm => "holm",
             Comparisons::TukeyKramer => "tukey-kramer",
+            Comparisons::AgainstReference => "against-reference",
         }
     }
 }

@@ -18,7 +18,10 @@ pub enum Work {
     CookWeisberg1982,
     DixonPechmann2005,
     Dunn1961,
+    Dunnett1955,
     Fisher1932,
+    Genz1992,
+    GenzBretz2002,
     HoaglinWelsch1978,
     Holm1979,
     HyndmanFan1996,
@@ -44,7 +47,7 @@ pub enum Work {
 
 impl Work {
     /// Every work, for tests.
-    pub const ALL: [Work; 32] = [
+    pub const ALL: [Work; 35] = [
         Work::AbramowitzStegun1964,
         Work::BelsleyKuhWelsch1980,
         Work::BollenJackman1990,
@@ -55,7 +58,10 @@ impl Work {
         Work::CookWeisberg1982,
         Work::DixonPechmann2005,
         Work::Dunn1961,
+        Work::Dunnett1955,
         Work::Fisher1932,
+        Work::Genz1992,
+        Work::GenzBretz2002,
         Work::HoaglinWelsch1978,
         Work::Holm1979,
         Work::HyndmanFan1996,
@@ -125,6 +131,15 @@ impl Work {
                 "Dixon, P. M. & Pechmann, J. H. K. (2005) Ecology 86, 1751–1756.",
             ),
             Work::Dunn1961 => ("Dunn 1961", "Dunn, O. J. (1961) JASA 56, 52–64."),
+            Work::Dunnett1955 => ("Dunnett 1955", "Dunnett, C. W. (1955) JASA 50, 1096–1121."),
+            Work::Genz1992 => (
+                "Genz 1992",
+                "Genz, A. (1992) Journal of Computational and Graphical Statistics 1, 141–149.",
+            ),
+            Work::GenzBretz2002 => (
+                "Genz & Bretz 2002",
+                "Genz, A. & Bretz, F. (2002) Journal of Computational and Graphical Statistics 11, 950–971.",
+            ),
             Work::Fisher1932 => (
                 "Fisher 1932",
                 "Fisher, R. A. (1932) Statistical Methods for Research Workers, 4th ed.",

@@ -61,6 +61,46 @@ pub struct RobustDifference {
     pub p_adjusted: Option<f64>,
     /// Interval at 1 − alpha, unadjusted.
     pub ci: Option<[f64; 2]>,
+    /// Under many-to-one comparisons: the interval simultaneous over the family,
+    /// d ± c·se with c from `many_to_one`.
+    #[serde(default)]
+    pub ci_simultaneous: Option<[f64; 2]>,
+}
+
+/// Many-to-one comparisons: every group against the reference (the first level),
+/// simultaneous over each family (Dunnett 1955), the multivariate t taken on a
+/// deterministic lattice (Genz 1992; Genz & Bretz 2002).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ManyToOne {
+    /// The reference level every other is compared with.
+    pub reference: String,
+    /// Simultaneous coverage of each family's intervals, 1 − alpha.
+    pub level: f64,
+    /// The slope differences (`pairwise_slopes`).
+    pub slopes: SimultaneousFamily,
+    /// The adjusted-mean differences (`pairwise_adjusted`).
+    pub adjusted: SimultaneousFamily,
+    /// The same families with the robust covariance, when the plan names one.
+    pub robust_slopes: Option<SimultaneousFamily>,
+    /// See `robust_slopes`.
+    pub robust_adjusted: Option<SimultaneousFamily>,
+}
+
+/// One family of many-to-one differences.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SimultaneousFamily {
+    /// c with P(|T_i| ≤ c for every i) = 1 − alpha; null when a standard error is
+    /// unknown.
+    pub critical_value: Option<f64>,
+    /// Degrees of freedom of the multivariate t.
+    pub df: f64,
+    /// The largest stated error of the family's probabilities (3.5 standard errors
+    /// over the lattice's shifts); 0 for a single pair, where they are exact.
+    pub error: Option<f64>,
+    /// "multivariate-t", or "bonferroni" beyond 10 groups, where the integral's
+    /// dimension makes it too slow and the Bonferroni bound (conservative) is used.
+    #[serde(default)]
+    pub method: String,
 }
 
 /// An adjusted mean with a robust standard error.

@@ -11,7 +11,9 @@ pub fn adjust(p: &[f64], method: Comparisons) -> Vec<f64> {
     match method {
         // Tukey–Kramer does not adjust p-values: it replaces them by studentized range
         // tails, which the callers compute from t (see `p_tukey` in the results).
-        Comparisons::None | Comparisons::TukeyKramer => p.to_vec(),
+        // Many-to-one families are simultaneous over the differences' correlation,
+        // which a list of p-values does not carry: see `analysis::pairwise`.
+        Comparisons::None | Comparisons::TukeyKramer | Comparisons::AgainstReference => p.to_vec(),
         Comparisons::Bonferroni => p.iter().map(|v| (v * m).min(1.0)).collect(),
         Comparisons::Holm => {
             let mut order: Vec<usize> = (0..p.len()).collect();

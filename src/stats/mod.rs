@@ -6,6 +6,7 @@ pub mod adjust;
 pub mod bands;
 pub mod brown_forsythe;
 pub mod dist;
+pub mod mvt;
 pub mod nested_f;
 pub mod noncentral_f;
 pub mod quantile;

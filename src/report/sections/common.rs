@@ -112,19 +112,30 @@ pub(super) fn section(b: &mut Builder, c: &Ctx, framing: Framing) {
         "none" => "p, not adjusted".to_string(),
         name => format!("p, {name}"),
     };
-    b.para(vec![
-        t(format!(
-            "Each pair's adjusted means at {at} compared by a t test on the parallel-lines model; difference = first − second, {} intervals unadjusted. A pair differs when its p-value after adjustment ({}) is below {}. The Tukey–Kramer p-value uses the studentized range over all {} groups (",
+    let simultaneous = r.many_to_one.is_some();
+    if simultaneous {
+        let mut intro = vec![t(format!(
+            "Each group's adjusted mean at {at} compared with the reference's by a t test on the parallel-lines model, {} intervals unadjusted beside the simultaneous ones. A group differs when its many-to-one p-value is below {}.",
             c.conf,
-            c.adjust,
             super::level(r.model.alpha),
-            r.groups.len()
-        )),
-        Inline::Cite(Work::Tukey1953),
-        t("; "),
-        Inline::Cite(Work::Kramer1956),
-        t(")."),
-    ]);
+        ))];
+        intro.extend(super::many_to_one_note(c, |m| Some(&m.adjusted)));
+        b.para(intro);
+    } else {
+        b.para(vec![
+            t(format!(
+                "Each pair's adjusted means at {at} compared by a t test on the parallel-lines model; difference = first − second, {} intervals unadjusted. A pair differs when its p-value after adjustment ({}) is below {}. The Tukey–Kramer p-value uses the studentized range over all {} groups (",
+                c.conf,
+                c.adjust,
+                super::level(r.model.alpha),
+                r.groups.len()
+            )),
+            Inline::Cite(Work::Tukey1953),
+            t("; "),
+            Inline::Cite(Work::Kramer1956),
+            t(")."),
+        ]);
+    }
     let alpha = r.model.alpha;
     let ratios = r.pairwise_adjusted.iter().any(|d| d.ratio.is_some());
     let mut header = vec![
@@ -137,16 +148,28 @@ pub(super) fn section(b: &mut Builder, c: &Ctx, framing: Framing) {
         header.push(cell("ratio"));
         header.push(cell(format!("{} interval", c.conf)));
     }
+    // Under many-to-one comparisons the simultaneous interval takes the place of
+    // the Tukey–Kramer p, which is a statement about every pair, not this family.
     header.extend([
         cell(adjusted_column),
-        cell("Tukey–Kramer p"),
+        cell(if simultaneous {
+            format!("simultaneous {} interval", c.conf)
+        } else {
+            "Tukey–Kramer p".to_string()
+        }),
         cell("p before adjustment"),
         cell("t"),
         cell("SE"),
     ]);
+    let ends = if simultaneous { "l" } else { "r" };
+    let alignment = if ratios {
+        format!("llrlrlr{ends}rrr")
+    } else {
+        format!("llrlr{ends}rrr")
+    };
     b.table_aligned(
         header,
-        aligns(if ratios { "llrlrlrrrrr" } else { "llrlrrrrr" }),
+        aligns(&alignment),
         r.pairwise_adjusted
             .iter()
             .map(|d| {
@@ -167,7 +190,11 @@ pub(super) fn section(b: &mut Builder, c: &Ctx, framing: Framing) {
                 }
                 row.extend([
                     cell(p(d.p_adjusted)),
-                    cell(p(d.p_tukey)),
+                    cell(if simultaneous {
+                        ci(d.ci_simultaneous)
+                    } else {
+                        p(d.p_tukey)
+                    }),
                     cell(p(d.p_value)),
                     cell(num(d.t)),
                     cell(num(d.se)),

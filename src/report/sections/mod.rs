@@ -200,8 +200,54 @@ pub fn adjustment_name(method: &str) -> &'static str {
         "holm" => "Holm",
         "bonferroni" => "Bonferroni",
         "tukey-kramer" => "Tukey–Kramer",
+        "against-reference" => "many-to-one",
         _ => "none",
     }
+}
+
+/// Under many-to-one comparisons, what one family's adjusted p-values and
+/// simultaneous intervals mean: each group against the reference, together over
+/// the family (Dunnett 1955), with the critical value and the error of the
+/// multivariate t probabilities. Empty otherwise.
+pub(super) fn many_to_one_note(
+    c: &Ctx,
+    family: impl Fn(&crate::results::ManyToOne) -> Option<&crate::results::SimultaneousFamily>,
+) -> Runs {
+    let Some(m) = &c.r.many_to_one else {
+        return Vec::new();
+    };
+    let Some(f) = family(m) else {
+        return Vec::new();
+    };
+    let mut runs = vec![
+        t(" Every group is compared with the reference, "),
+        v(&m.reference),
+        t(format!(
+            " (the first level): difference = group − reference. The many-to-one p-values and the simultaneous {} intervals hold for all {} differences together (",
+            c.conf,
+            c.r.groups.len().saturating_sub(1)
+        )),
+        Inline::Cite(crate::report::cite::Work::Dunnett1955),
+        t(")"),
+    ];
+    match (f.critical_value, f.error) {
+        (Some(cv), Some(_)) if f.method == "bonferroni" => runs.push(t(format!(
+            ": with this many groups they are the Bonferroni bound, conservative: interval = difference ± {} × SE, the t quantile at {} df and α/(2 × {}).",
+            num(Some(cv)),
+            int(f.df),
+            c.r.groups.len().saturating_sub(1)
+        ))),
+        (Some(cv), Some(err)) => runs.push(t(format!(
+            ": interval = difference ± {} × SE, the critical value of the multivariate t on {} df with the differences' own correlation; its probabilities carry an error of at most {}.",
+            num(Some(cv)),
+            int(f.df),
+            crate::number::sig(err.max(1e-12), 2)
+        ))),
+        _ => runs.push(t(
+            ": they cannot be computed here, because a standard error is unknown.",
+        )),
+    }
+    runs
 }
 
 /// The axis and table label of a column: `log(height_cm)` for a transformed one.
