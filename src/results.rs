@@ -669,12 +669,21 @@ pub struct LimitCrossing {
     /// "lower" or "upper".
     pub side: String,
     /// One-sided confidence of the bound: the plan's confidence with one limit,
-    /// (1 + confidence)/2 with both.
+    /// (1 + confidence)/2 with both; for the simultaneous band, the plan's
+    /// confidence (its coverage for both sides and every covariate value together).
     pub confidence: f64,
     /// "mean" (confidence bound of the mean line) or "prediction" (bound for a
     /// single future result).
     #[serde(default)]
     pub bound: String,
+    /// "pointwise" (Student's t at the one-sided level) or "simultaneous" (the
+    /// Working–Hotelling band at the confidence, for every covariate value at once).
+    #[serde(default = "pointwise")]
+    pub band: String,
+    /// The multiplier of the bound's standard error actually used; null when the
+    /// line has no residual df.
+    #[serde(default)]
+    pub critical_value: Option<f64>,
     /// True when the response has both limits, so each side uses the two-sided level.
     #[serde(default)]
     pub two_sided: bool,
@@ -756,6 +765,36 @@ pub struct Pooling {
     /// computed); null when they ran to a decision.
     #[serde(default)]
     pub stopped_at: Option<String>,
+    /// "difference" (the two tests decide) or "equivalence" (the two one-sided tests
+    /// of every pair against the margins decide; the tests' p-values stay beside).
+    #[serde(default = "difference_rule")]
+    pub rule: String,
+    /// Under the equivalence rule: the slope margin (response units per covariate
+    /// unit).
+    #[serde(default)]
+    pub slope_margin: Option<f64>,
+    /// Under the equivalence rule: the margin for the distance between two parallel
+    /// lines (response units).
+    #[serde(default)]
+    pub intercept_margin: Option<f64>,
+    /// Under the equivalence rule: level of each one-sided test (the plan's alpha).
+    #[serde(default)]
+    pub equivalence_alpha: Option<f64>,
+    /// Under the equivalence rule: every pair of slopes on the separate lines.
+    #[serde(default)]
+    pub slope_pairs: Vec<EquivalencePair>,
+    /// Under the equivalence rule, when every slope pair is shown equivalent: every
+    /// pair of parallel lines (the difference of intercepts on the common slope).
+    #[serde(default)]
+    pub intercept_pairs: Vec<EquivalencePair>,
+}
+
+fn pointwise() -> String {
+    "pointwise".into()
+}
+
+fn difference_rule() -> String {
+    "difference".into()
 }
 
 /// The key results again, without the rows that matter.

@@ -1027,3 +1027,113 @@ fn many_to_one_beyond_ten_groups_takes_the_bonferroni_bound_and_says_so() {
             .contains("they are the Bonferroni bound, conservative")
     );
 }
+
+// ---- equivalence-based lot pooling ---------------------------------------------
+
+/// `BASE_PLAN` with a `[tests]` table holding `keys` (one per line, from line 12).
+fn pooling_plan(keys: &[&str]) -> String {
+    let table = keys
+        .iter()
+        .map(|k| format!("    {k}\n"))
+        .collect::<String>();
+    BASE_PLAN.replace("[report]\n", &format!("[tests]\n{table}\n    [report]\n"))
+}
+
+#[test]
+fn pooling_margins_are_checked_at_their_keys() {
+    let lot = "procedure = \"lot-pooling\"";
+    let rule = "pooling_rule = \"equivalence\"";
+    let cases: [(&str, Vec<&str>, &str, &str); 5] = [
+        (
+            "pooling_margin_without_rule",
+            vec![lot, "pooling_slope_margin = 0.05"],
+            "tests.pooling_slope_margin is used only with pooling_rule = \"equivalence\"",
+            "--> plan.toml:13:24",
+        ),
+        (
+            "pooling_rule_without_lot_pooling",
+            vec![
+                rule,
+                "pooling_slope_margin = 0.05",
+                "pooling_intercept_margin = 1.0",
+            ],
+            "tests.pooling_rule = \"equivalence\" needs procedure = \"lot-pooling\"",
+            "--> plan.toml:12:16",
+        ),
+        (
+            "pooling_rule_missing_margin",
+            vec![lot, rule, "pooling_slope_margin = 0.05"],
+            "tests.pooling_rule = \"equivalence\" needs tests.pooling_intercept_margin",
+            "--> plan.toml:13:16",
+        ),
+        (
+            "pooling_margin_negative",
+            vec![
+                lot,
+                rule,
+                "pooling_slope_margin = -0.05",
+                "pooling_intercept_margin = 1.0",
+            ],
+            "tests.pooling_slope_margin must be a positive number, found -0.05",
+            "--> plan.toml:14:24",
+        ),
+        (
+            "pooling_margin_zero",
+            vec![
+                lot,
+                rule,
+                "pooling_slope_margin = 0.05",
+                "pooling_intercept_margin = 0.0",
+            ],
+            "tests.pooling_intercept_margin must be a positive number, found 0",
+            "--> plan.toml:15:28",
+        ),
+    ];
+    for (name, keys, message, at) in cases {
+        Test::new(name)
+            .plan(&pooling_plan(&keys))
+            .data(THREE_PLOTS)
+            .fails()
+            .stderr_has(&[message, at])
+            .run();
+    }
+}
+
+#[test]
+fn pooling_margins_refuse_a_transformed_scale() {
+    let plan = pooling_plan(&[
+        "procedure = \"lot-pooling\"",
+        "pooling_rule = \"equivalence\"",
+        "pooling_slope_margin = 0.05",
+        "pooling_intercept_margin = 1.0",
+    ])
+    .replace(
+        "group = \"plot\"\n",
+        "group = \"plot\"\n    transform = { response = \"log\" }\n",
+    );
+    Test::new("pooling_margin_log")
+        .plan(&plan)
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "tests.pooling_slope_margin is on the measured scale, but the plan transforms the response or the covariate",
+        ])
+        .run();
+}
+
+#[test]
+fn a_simultaneous_band_for_a_prediction_bound_is_a_plan_error_at_the_band() {
+    let plan = BASE_PLAN.replace(
+        "[report]\n",
+        "[limits]\n    lower = 1.0\n    bound = \"prediction\"\n    band = \"simultaneous\"\n\n    [report]\n",
+    );
+    Test::new("band_prediction")
+        .plan(&plan)
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "limits.band = \"simultaneous\" is a band for the mean line, but limits.bound = \"prediction\" asks for a single future result",
+            "--> plan.toml:14:8",
+        ])
+        .run();
+}

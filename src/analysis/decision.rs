@@ -86,10 +86,18 @@ pub(super) fn conclude(
                 check: "levels-disagree".into(),
                 level: None,
                 p_value: r.equal_slopes.p_value,
-                statement: "the plan's two levels (slopes_alpha and pooling_alpha) lead to different models".into(),
+                statement: if pooling.rule == "equivalence" {
+                    "the equal-slopes gate and equivalence-based lot pooling lead to different models".into()
+                } else {
+                    "the plan's two levels (slopes_alpha and pooling_alpha) lead to different models".into()
+                },
                 consequence: "the comparisons and the limits rest on different lines; read each section with its model in mind".into(),
             },
-            warning: levels_disagree(&r, pooling.alpha, homogeneous, limits),
+            warning: if pooling.rule == "equivalence" {
+                rules_disagree(&r, homogeneous, limits)
+            } else {
+                levels_disagree(&r, pooling.alpha, homogeneous, limits)
+            },
         });
     }
     if let Some(rb) = r.robust.as_ref().filter(|rb| rb.disagree) {
@@ -331,6 +339,7 @@ fn limits_reading(model: &str, lines: &[LimitCrossing], r: &Results) -> LimitsRe
         model: model.to_string(),
         outcome: "never".into(),
         bound: first.map_or("mean".into(), |l| l.bound.clone()),
+        band: first.map_or("pointwise".into(), |l| l.band.clone()),
         confidence: first.map_or(0.0, |l| l.confidence),
         supported: r.limits_supported.as_ref().and_then(|s| s.supported),
         ..LimitsReading::default()
@@ -455,6 +464,27 @@ fn levels_disagree(r: &Results, pooling_alpha: f64, homogeneous: bool, limits: &
         "The plan's two levels lead to different models: the equal-slopes test gives {p}, {gate_side} slopes_alpha = {} but {pool_side} pooling_alpha = {}. The comparisons and the influence measures use {comparisons}; the limits' crossings are read from {limits_text}. Read each section with its model in mind, or set one level for both to have one model throughout.",
         trimmed(gate.alpha, 4),
         trimmed(pooling_alpha, 4)
+    )
+}
+
+/// The statement that the gate and equivalence-based pooling led to different
+/// models.
+fn rules_disagree(r: &Results, homogeneous: bool, limits: &str) -> String {
+    let limits_text = match limits {
+        "separate" => "separate lines",
+        "common-slope" => "parallel lines",
+        _ => "one pooled line",
+    };
+    let comparisons = if homogeneous {
+        "parallel lines"
+    } else {
+        "separate lines"
+    };
+    format!(
+        "The equal-slopes gate and equivalence-based lot pooling lead to different models: the gate ({}) gives {comparisons}, which the comparisons and the influence measures use, while pooling by the margins gives {limits_text}, from which the limits' crossings are read. Read each section with its model in mind.",
+        r.equal_slopes
+            .p_value
+            .map_or("no p-value".to_string(), p_equation)
     )
 }
 

@@ -67,7 +67,8 @@ pub(super) fn slopes(
     }
 }
 
-fn pair(d: &Difference<'_>, m: f64, alpha: f64) -> EquivalencePair {
+/// The two one-sided tests of one difference against ±`m` at `alpha`.
+pub(super) fn pair(d: &Difference<'_>, m: f64, alpha: f64) -> EquivalencePair {
     let usable = d.se.filter(|s| *s > 0.0 && s.is_finite() && d.df > 0.0);
     let (ci, p_lower, p_upper) = match usable {
         Some(s) => {

@@ -31,8 +31,9 @@
 
 use crate::fit::{CommonSlopeFit, OneLineFit, SeparateFit};
 use crate::number::{sig, trimmed};
-use crate::plan::{BoundKind, Extrapolation, LimitSpec, Plan, Procedure, Storage};
+use crate::plan::{BandKind, BoundKind, Extrapolation, LimitSpec, Plan, Procedure, Storage};
 use crate::results::{EarliestCrossing, LimitCrossing, Pooling, SupportedPeriod};
+use crate::stats::bands::working_hotelling;
 use crate::stats::dist::t_quantile;
 
 /// A mean line with what its one-sided bound needs.
@@ -60,12 +61,24 @@ impl BoundLine {
             + sign * t * self.s * (self.inv_n + self.obs + u * u / self.sxx).sqrt()
     }
 
-    /// Where the bound meets `limit` for good, after the first observation.
-    fn crossing(&self, limit: f64, lower: bool, confidence: f64) -> Outcome {
+    /// The multiplier of the bound's standard error: Student's t at the one-sided
+    /// `level`, or for the simultaneous band the Working–Hotelling value √(2 F(c; 2,
+    /// df)) at the limits' `confidence` c — the two-sided band at c, which holds for
+    /// every covariate value at once on both sides together, so each side alone at
+    /// least as often (conservative for one limit, exact for two).
+    fn critical(&self, band: BandKind, level: f64, confidence: f64) -> f64 {
+        match band {
+            BandKind::Pointwise => t_quantile(level, self.df),
+            BandKind::Simultaneous => working_hotelling(1.0 - confidence, self.df),
+        }
+    }
+
+    /// Where the bound with multiplier `t` meets `limit` for good, after the first
+    /// observation.
+    fn crossing(&self, limit: f64, lower: bool, t: f64) -> Outcome {
         // An upper limit on y is a lower limit on −y: flip the mean and the limit.
         let sign = if lower { 1.0 } else { -1.0 };
         let (mean0, slope, limit_l) = (sign * self.mean0, sign * self.slope, sign * limit);
-        let t = t_quantile(confidence, self.df);
         let ts = t * self.s;
         // g(u) = mean0 − L + slope·u − ts √(1/n + u²/S): the bound's distance above L.
         let g = |u: f64| {
@@ -173,9 +186,25 @@ pub(super) fn pooling(
     plan: &Plan,
     slopes_p: Option<f64>,
     intercepts_p: Option<f64>,
+    levels: &[&str],
+    separate: &SeparateFit,
+    common: &CommonSlopeFit,
 ) -> Option<(Pooling, Option<String>)> {
     (plan.tests.procedure == Procedure::LotPooling).then(|| {
         let alpha = plan.tests.pooling_alpha;
+        if let Some(margins) = plan.tests.pooling_margins {
+            return (
+                equivalence_pooling(
+                    margins,
+                    plan.tests.alpha,
+                    (slopes_p, intercepts_p, alpha),
+                    levels,
+                    separate,
+                    common,
+                ),
+                None,
+            );
+        }
         let (decision, stopped_at) = match slopes_p {
             None => ("not-decided", Some("slopes")),
             Some(p) if p < alpha => ("separate", None),
@@ -202,10 +231,94 @@ pub(super) fn pooling(
                 alpha,
                 decision: decision.to_string(),
                 stopped_at: stopped_at.map(str::to_string),
+                rule: "difference".into(),
+                slope_margin: None,
+                intercept_margin: None,
+                equivalence_alpha: None,
+                slope_pairs: Vec::new(),
+                intercept_pairs: Vec::new(),
             },
             statement,
         )
     })
+}
+
+/// Equivalence-based pooling: the lots share a slope when every pair of slopes is
+/// shown equivalent within the slope margin, and share one line when, on the common
+/// slope, every pair of parallel lines is also shown within the intercept margin —
+/// two one-sided tests at `alpha` (Schuirmann 1987), the equivalence form of the
+/// poolability question (Llabres et al. 2000; Tsong, Chen & Chen 2003). A pair not
+/// shown equivalent keeps the lots apart, so a step that cannot be settled never
+/// pools. Classical standard errors: slopes on the separate lines' residual variance,
+/// line distances ȳ_a − ȳ_b − b (x̄_a − x̄_b) with s² (1/n_a + 1/n_b + (x̄_a −
+/// x̄_b)²/Σ Sxx) on the parallel lines' (Snedecor & Cochran 1989, §18.3).
+fn equivalence_pooling(
+    margins: crate::plan::PoolingMargins,
+    alpha: f64,
+    (slopes_p, intercepts_p, tests_alpha): (Option<f64>, Option<f64>, f64),
+    levels: &[&str],
+    separate: &SeparateFit,
+    common: &CommonSlopeFit,
+) -> Pooling {
+    use super::equivalence::{Difference, pair};
+    let k = separate.lines.len();
+    let all = super::pairwise::pair_indices(k, crate::plan::Comparisons::Holm);
+    let s2_sep = separate.sigma2();
+    let slope_pairs: Vec<_> = all
+        .iter()
+        .map(|&(i, j)| {
+            let (a, b) = (&separate.lines[i], &separate.lines[j]);
+            let se = s2_sep.map(|s2| (s2 * (1.0 / a.moments.sxx + 1.0 / b.moments.sxx)).sqrt());
+            let d = Difference::new(levels[i], levels[j], a.slope - b.slope, se, separate.df);
+            pair(&d, margins.slope, alpha)
+        })
+        .collect();
+    let shown = |pairs: &[crate::results::EquivalencePair]| {
+        !pairs.is_empty() && pairs.iter().all(|p| p.reading == "shown-equivalent")
+    };
+    let (decision, intercept_pairs) = if !shown(&slope_pairs) {
+        ("separate", Vec::new())
+    } else {
+        let s2 = common.sigma2();
+        let pairs: Vec<_> = all
+            .iter()
+            .map(|&(i, j)| {
+                let (a, b) = (&separate.lines[i].moments, &separate.lines[j].moments);
+                let dx = a.mean_x - b.mean_x;
+                let d = a.mean_y - b.mean_y - common.slope * dx;
+                let se = s2.map(|s2| {
+                    (s2 * (1.0 / a.n as f64 + 1.0 / b.n as f64 + dx * dx / common.sxx_within))
+                        .sqrt()
+                });
+                pair(
+                    &Difference::new(levels[i], levels[j], d, se, common.df),
+                    margins.intercept,
+                    alpha,
+                )
+            })
+            .collect();
+        (
+            if shown(&pairs) {
+                "pooled"
+            } else {
+                "common-slope"
+            },
+            pairs,
+        )
+    };
+    Pooling {
+        slopes_p,
+        intercepts_p,
+        alpha: tests_alpha,
+        decision: decision.to_string(),
+        stopped_at: None,
+        rule: "equivalence".into(),
+        slope_margin: Some(margins.slope),
+        intercept_margin: Some(margins.intercept),
+        equivalence_alpha: Some(alpha),
+        slope_pairs,
+        intercept_pairs,
+    }
 }
 
 /// Crossings for every line of the selected model.
@@ -288,10 +401,11 @@ pub(super) fn crossings(
         // comes before any solved crossing.
         let mut first: Option<(bool, f64, String)> = None;
         for line in &lines {
+            let critical = line.critical(spec.band, level, spec.confidence);
             let found = if !decided {
                 None
             } else if line.s.is_finite() && line.df > 0.0 {
-                Some(line.crossing(limit, side == "lower", level))
+                Some(line.crossing(limit, side == "lower", critical))
             } else {
                 Some(Outcome::Never)
             };
@@ -335,8 +449,19 @@ pub(super) fn crossings(
                 level: line.level.clone(),
                 limit,
                 side: side.to_string(),
-                confidence: level,
+                // The simultaneous band's coverage is the plan's confidence, for
+                // both sides together.
+                confidence: match spec.band {
+                    BandKind::Pointwise => level,
+                    BandKind::Simultaneous => spec.confidence,
+                },
                 bound: bound_name.to_string(),
+                band: match spec.band {
+                    BandKind::Pointwise => "pointwise",
+                    BandKind::Simultaneous => "simultaneous",
+                }
+                .into(),
+                critical_value: critical.is_finite().then_some(critical),
                 two_sided,
                 crossing,
                 reason: match found {
@@ -518,6 +643,11 @@ mod tests {
         }
     }
 
+    /// Student's t at the one-sided 0.95 on the test line's 18 df.
+    fn t95() -> f64 {
+        t_quantile(0.95, 18.0)
+    }
+
     fn solved(o: Outcome) -> f64 {
         match o {
             Outcome::Crossing(x) => x,
@@ -528,7 +658,7 @@ mod tests {
     #[test]
     fn crossing_solves_the_bound_equation() {
         let l = line(-0.2);
-        let x = solved(l.crossing(95.0, true, 0.95));
+        let x = solved(l.crossing(95.0, true, t95()));
         let t = t_quantile(0.95, 18.0);
         assert!((l.bound(x, t, -1.0) - 95.0).abs() < 1e-10);
         // The mean alone reaches 95 at month 37; the bound earlier.
@@ -542,13 +672,13 @@ mod tests {
         let margin = t * 0.5 / 1000f64.sqrt();
         // A slope below the margin: the bound's curvature brings it down to 95.
         let slow = line(0.5 * margin);
-        let x = solved(slow.crossing(95.0, true, 0.95));
+        let x = solved(slow.crossing(95.0, true, t95()));
         assert!((slow.bound(x, t, -1.0) - 95.0).abs() < 1e-9, "{x}");
         assert!(x > 24.0);
         // A slope above it: the bound rises for good and never meets 95.
-        assert_eq!(line(0.2).crossing(95.0, true, 0.95), Outcome::Never);
+        assert_eq!(line(0.2).crossing(95.0, true, t95()), Outcome::Never);
         assert!(matches!(
-            line(0.2).crossing(105.0, false, 0.95),
+            line(0.2).crossing(105.0, false, t95()),
             Outcome::Crossing(_)
         ));
     }
@@ -558,7 +688,7 @@ mod tests {
         // Mean 100 at month 12 falling 0.2 a month: 102.4 at month 0, so an upper
         // limit of 101 is passed before the data begin.
         assert_eq!(
-            line(-0.2).crossing(101.0, false, 0.95),
+            line(-0.2).crossing(101.0, false, t95()),
             Outcome::BeyondAtStart
         );
     }
@@ -574,6 +704,7 @@ mod tests {
             upper: None,
             confidence: 0.95,
             bound: BoundKind::Mean,
+            band: crate::plan::BandKind::Pointwise,
             extrapolation: rule,
             accelerated_change,
             round_to,
@@ -587,6 +718,8 @@ mod tests {
             side: "lower".into(),
             confidence: 0.95,
             bound: "mean".into(),
+            band: "pointwise".into(),
+            critical_value: None,
             two_sided: false,
             crossing,
             reason: reason.map(str::to_string),
@@ -793,14 +926,29 @@ mod tests {
         // Draper & Smith (1998) §3.1: the prediction bound's variance is the mean's
         // plus s², so its crossing comes earlier and solves its own equation.
         let mut l = line(-0.2);
-        let mean = solved(l.crossing(95.0, true, 0.95));
+        let mean = solved(l.crossing(95.0, true, t95()));
         l.obs = 1.0;
-        let pred = solved(l.crossing(95.0, true, 0.95));
+        let pred = solved(l.crossing(95.0, true, t95()));
         let t = t_quantile(0.95, 18.0);
         let u = pred - 12.0;
         let by_hand = 100.0 - 0.2 * u - t * 0.5 * (1.0 + 1.0 / 20.0 + u * u / 1000.0).sqrt();
         assert!((by_hand - 95.0).abs() < 1e-9, "{by_hand}");
         assert!(pred < mean, "{pred} {mean}");
+    }
+
+    #[test]
+    fn the_simultaneous_band_uses_the_working_hotelling_value_at_the_confidence() {
+        // √(2 F(0.95; 2, 18)) (Working & Hotelling 1929), larger than t(0.95, 18), so
+        // its crossing comes earlier; with both limits it stays at the confidence.
+        let l = line(-0.2);
+        let wh = l.critical(BandKind::Simultaneous, 0.95, 0.95);
+        assert_eq!(wh, working_hotelling(0.05, 18.0));
+        assert_eq!(l.critical(BandKind::Simultaneous, 0.975, 0.95), wh);
+        assert_eq!(l.critical(BandKind::Pointwise, 0.95, 0.95), t95());
+        let simultaneous = solved(l.crossing(95.0, true, wh));
+        let pointwise = solved(l.crossing(95.0, true, t95()));
+        assert!((l.bound(simultaneous, wh, -1.0) - 95.0).abs() < 1e-10);
+        assert!(simultaneous < pointwise, "{simultaneous} {pointwise}");
     }
 
     #[test]

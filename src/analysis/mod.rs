@@ -523,8 +523,14 @@ fn procedure(
         )
     };
 
-    let (pooling, stopped) = match limits::pooling(plan, equal_slopes.p_value, group_effect.p_value)
-    {
+    let (pooling, stopped) = match limits::pooling(
+        plan,
+        equal_slopes.p_value,
+        group_effect.p_value,
+        &levels,
+        separate,
+        common,
+    ) {
         Some((p, stopped)) => (Some(p), stopped),
         None => (None, None),
     };

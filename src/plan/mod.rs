@@ -156,6 +156,20 @@ pub struct TestSpec {
     pub slope_margin: Option<f64>,
     /// What the gate needs for the common-slope branch.
     pub gate: GateRule,
+    /// How lot pooling decides each step.
+    pub pooling_rule: GateRule,
+    /// Under the equivalence rule: the slope and the intercept margins (measured
+    /// scale, both columns untransformed).
+    pub pooling_margins: Option<PoolingMargins>,
+}
+
+/// The margins of equivalence-based lot pooling.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PoolingMargins {
+    /// Largest slope difference that does not matter.
+    pub slope: f64,
+    /// Largest distance between parallel lines that does not matter.
+    pub intercept: f64,
 }
 
 /// The `[limits]` table: where the mean response must stay.
@@ -170,6 +184,8 @@ pub struct LimitSpec {
     pub confidence: f64,
     /// The mean line's confidence bound or the prediction bound of one result.
     pub bound: BoundKind,
+    /// Pointwise or simultaneous (Working–Hotelling) confidence bound of the mean.
+    pub band: BandKind,
     /// How far beyond the observed period the supported period may go, if a rule
     /// was given.
     pub extrapolation: Option<Extrapolation>,
@@ -465,6 +481,8 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
             covariance: Covariance::Classical,
             slope_margin: None,
             gate: GateRule::Difference,
+            pooling_rule: GateRule::Difference,
+            pooling_margins: None,
         },
         Some(t) => {
             let t = t.get_ref();
@@ -489,6 +507,15 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                     .map_or(Covariance::Classical, |c| *c.get_ref()),
                 slope_margin: slope_margin(t, &(response_transform, covariate_transform), &err)?,
                 gate: gate_rule(t, &err)?,
+                pooling_rule: t
+                    .pooling_rule
+                    .as_ref()
+                    .map_or(GateRule::Difference, |r| *r.get_ref()),
+                pooling_margins: pooling_margins(
+                    t,
+                    &(response_transform, covariate_transform),
+                    &err,
+                )?,
                 pooling_alpha: match &t.pooling_alpha {
                     None => 0.25,
                     Some(_) => level(t.pooling_alpha.as_ref(), "tests.pooling_alpha", &err)?,
@@ -691,6 +718,20 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
                 upper,
                 confidence,
                 bound: l.bound.as_ref().map_or(BoundKind::Mean, |b| *b.get_ref()),
+                band: match (&l.band, &l.bound) {
+                    (Some(b), Some(k))
+                        if *b.get_ref() == BandKind::Simultaneous
+                            && *k.get_ref() == BoundKind::Prediction =>
+                    {
+                        return Err(err(
+                            b.span(),
+                            "limits.band = \"simultaneous\" is a band for the mean line, but limits.bound = \"prediction\" asks for a single future result".into(),
+                            "use band = \"simultaneous\" with bound = \"mean\", or remove band to read the prediction bound pointwise",
+                        ));
+                    }
+                    (Some(b), _) => *b.get_ref(),
+                    (None, _) => BandKind::Pointwise,
+                },
                 extrapolation,
                 accelerated_change: l.accelerated_change.as_ref().is_some_and(|a| *a.get_ref()),
                 round_to,
@@ -788,6 +829,87 @@ fn slope_margin(
         ));
     }
     Ok(Some(v))
+}
+
+/// `tests.pooling_rule` and its margins: "equivalence" needs lot pooling and both
+/// margins, each finite, positive and on the measured scale; a margin without the
+/// equivalence rule would be ignored, so it is an error instead.
+fn pooling_margins(
+    t: &schema::RawTests,
+    transforms: &(Transform, Transform),
+    err: &impl Fn(Range<usize>, String, &str) -> PlanError,
+) -> Result<Option<PoolingMargins>, PlanError> {
+    let equivalence = t
+        .pooling_rule
+        .as_ref()
+        .filter(|r| *r.get_ref() == GateRule::Equivalence);
+    let keys = [
+        (
+            "pooling_slope_margin",
+            &t.pooling_slope_margin,
+            "response units per covariate unit, such as 0.05",
+        ),
+        (
+            "pooling_intercept_margin",
+            &t.pooling_intercept_margin,
+            "response units, such as 1.0",
+        ),
+    ];
+    let Some(rule) = equivalence else {
+        for (key, value, _) in keys {
+            if let Some(v) = value {
+                return Err(err(
+                    v.span(),
+                    format!("tests.{key} is used only with pooling_rule = \"equivalence\""),
+                    "add `pooling_rule = \"equivalence\"` under [tests], or remove the margin",
+                ));
+            }
+        }
+        return Ok(None);
+    };
+    if t.procedure.as_ref().map(|p| *p.get_ref()) != Some(Procedure::LotPooling) {
+        return Err(err(
+            rule.span(),
+            "tests.pooling_rule = \"equivalence\" needs procedure = \"lot-pooling\"".into(),
+            "add `procedure = \"lot-pooling\"` under [tests], or remove pooling_rule",
+        ));
+    }
+    let mut margins = [0.0; 2];
+    for (slot, (key, value, unit)) in margins.iter_mut().zip(keys) {
+        let Some(m) = value else {
+            return Err(err(
+                rule.span(),
+                format!("tests.pooling_rule = \"equivalence\" needs tests.{key}"),
+                &format!(
+                    "add `{key}` under [tests]: the largest difference between lots that does not matter, in {unit}"
+                ),
+            ));
+        };
+        let v = *m.get_ref();
+        if !(v.is_finite() && v > 0.0) {
+            return Err(err(
+                m.span(),
+                format!("tests.{key} must be a positive number, found {v}"),
+                &format!(
+                    "give the largest difference between lots that does not matter, in {unit}"
+                ),
+            ));
+        }
+        if transforms.0 != Transform::None || transforms.1 != Transform::None {
+            return Err(err(
+                m.span(),
+                format!(
+                    "tests.{key} is on the measured scale, but the plan transforms the response or the covariate, so the margin has no fixed size there"
+                ),
+                "remove the transform, or use pooling_rule = \"difference\"",
+            ));
+        }
+        *slot = v;
+    }
+    Ok(Some(PoolingMargins {
+        slope: margins[0],
+        intercept: margins[1],
+    }))
 }
 
 /// `tests.gate`: "equivalence" needs a margin.

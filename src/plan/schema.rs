@@ -205,6 +205,22 @@ pub(super) struct RawTests {
     /// pair of slopes is shown equivalent within `slope_margin`, which it requires).
     #[schemars(with = "Option<GateRule>", extend("default" = "difference", "examples" = ["difference"]))]
     pub gate: Option<Spanned<GateRule>>,
+    /// How lot pooling decides each step, with procedure = "lot-pooling":
+    /// "difference" (ICH Q1E 2003: the equal-slopes, then the equal-intercepts test
+    /// at pooling_alpha) or "equivalence" (every pair of slopes, then every pair of
+    /// parallel lines, shown equivalent within pooling_slope_margin and
+    /// pooling_intercept_margin by two one-sided tests at alpha; both margins
+    /// required).
+    #[schemars(with = "Option<GateRule>", extend("default" = "difference", "examples" = ["equivalence"]))]
+    pub pooling_rule: Option<Spanned<GateRule>>,
+    /// With pooling_rule = "equivalence": the largest slope difference between lots
+    /// that does not matter, response units per covariate unit, measured scale.
+    #[schemars(with = "Option<f64>", extend("exclusiveMinimum" = 0, "examples" = [0.05]))]
+    pub pooling_slope_margin: Option<Spanned<f64>>,
+    /// With pooling_rule = "equivalence": the largest vertical distance between two
+    /// lots' parallel lines that does not matter, response units, measured scale.
+    #[schemars(with = "Option<f64>", extend("exclusiveMinimum" = 0, "examples" = [1.0]))]
+    pub pooling_intercept_margin: Option<Spanned<f64>>,
 }
 
 /// What the gate needs before it takes the common-slope branch.
@@ -273,6 +289,12 @@ pub(super) struct RawLimits {
     /// mean line, or "prediction", the prediction bound for a single future result.
     #[schemars(with = "Option<BoundKind>", extend("default" = "mean", "examples" = ["prediction"]))]
     pub bound: Option<Spanned<BoundKind>>,
+    /// Which confidence bound of the mean meets the limits: "pointwise" (Student's t
+    /// at each covariate value) or "simultaneous" (the Working–Hotelling band at the
+    /// limits' confidence, which holds for every covariate value at once and so for
+    /// every crossing read from it). Only with bound = "mean".
+    #[schemars(with = "Option<BandKind>", extend("default" = "pointwise", "examples" = ["simultaneous"]))]
+    pub band: Option<Spanned<BandKind>>,
     /// Storage class whose extrapolation rule caps the supported period (covariate in
     /// months): "room" up to twice the covered period and at most 12 beyond it,
     /// "refrigerated" up to 1.5 times and at most 6 beyond (ICH Q1E 2003, quoted from

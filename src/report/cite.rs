@@ -28,6 +28,7 @@ pub enum Work {
     IchQ1e2003,
     JohnsonNeyman1936,
     Kramer1956,
+    Llabres2000,
     MacKinnonWhite1985,
     Potthoff1964,
     Royston1995,
@@ -37,6 +38,7 @@ pub enum Work {
     ShapiroWilk1965,
     SnedecorCochran1989,
     Steiger2004,
+    TsongChenChen2003,
     Tukey1953,
     Weisberg1985,
     Welch1947,
@@ -47,7 +49,7 @@ pub enum Work {
 
 impl Work {
     /// Every work, for tests.
-    pub const ALL: [Work; 35] = [
+    pub const ALL: [Work; 37] = [
         Work::AbramowitzStegun1964,
         Work::BelsleyKuhWelsch1980,
         Work::BollenJackman1990,
@@ -68,6 +70,7 @@ impl Work {
         Work::IchQ1e2003,
         Work::JohnsonNeyman1936,
         Work::Kramer1956,
+        Work::Llabres2000,
         Work::MacKinnonWhite1985,
         Work::Potthoff1964,
         Work::Royston1995,
@@ -77,6 +80,7 @@ impl Work {
         Work::ShapiroWilk1965,
         Work::SnedecorCochran1989,
         Work::Steiger2004,
+        Work::TsongChenChen2003,
         Work::Tukey1953,
         Work::Weisberg1985,
         Work::Welch1947,
@@ -183,6 +187,14 @@ impl Work {
             Work::Satterthwaite1946 => (
                 "Satterthwaite 1946",
                 "Satterthwaite, F. E. (1946) Biometrics Bulletin 2, 110–114.",
+            ),
+            Work::Llabres2000 => (
+                "Llabres et al. 2000",
+                "Llabres, C. M. et al. (2000), an equivalence approach to pooling stability batches (cited from memory).",
+            ),
+            Work::TsongChenChen2003 => (
+                "Tsong, Chen & Chen 2003",
+                "Tsong, Y., Chen, W.-J. & Chen, C.-W. (2003), equivalence tests for pooling stability batches, Journal of Biopharmaceutical Statistics (cited from memory).",
             ),
             Work::Schuirmann1987 => (
                 "Schuirmann 1987",

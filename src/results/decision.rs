@@ -87,7 +87,11 @@ pub struct LimitsReading {
     pub beyond: Option<f64>,
     /// "mean" or "prediction".
     pub bound: String,
-    /// The one-sided confidence of the bound.
+    /// "pointwise" or "simultaneous" (Working–Hotelling).
+    #[serde(default = "pointwise")]
+    pub band: String,
+    /// The one-sided confidence of the bound (for the simultaneous band, its
+    /// coverage).
     pub confidence: f64,
     /// The supported period after any cap, rounded down; null when none.
     pub supported: Option<f64>,
@@ -129,4 +133,8 @@ pub struct DecisionModels {
     /// separate-slopes model, parallel lines as the common-slope model; the pooled line
     /// is a model of its own).
     pub agree: bool,
+}
+
+fn pointwise() -> String {
+    "pointwise".into()
 }

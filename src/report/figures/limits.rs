@@ -116,7 +116,11 @@ pub(super) fn limits(ctx: &Context) -> Result<Figure, String> {
         if !(df > 0.0) {
             continue;
         }
-        let t = t_quantile(c.confidence, df);
+        // The multiplier the crossing was solved with (Student's t, or the
+        // Working–Hotelling value for the simultaneous band).
+        let t = c
+            .critical_value
+            .unwrap_or_else(|| t_quantile(c.confidence, df));
         let color = if model == "pooled" {
             0
         } else {
@@ -212,7 +216,11 @@ pub(super) fn limits(ctx: &Context) -> Result<Figure, String> {
     let legend = Legend::layout(&items, width as f64 - 40.0);
     let height = panel_h + legend.height() as u32;
     let level = number::trimmed(100.0 * first.confidence, 4);
-    let title = format!("Mean lines, one-sided {level}% bounds and limits");
+    let title = if first.band == "simultaneous" {
+        format!("Mean lines, {level}% simultaneous bands and limits")
+    } else {
+        format!("Mean lines, one-sided {level}% bounds and limits")
+    };
     let look = ctx.look();
     let mut layers = Vec::new();
     let svg = draw(width, height, &mut layers, |root, layers| {
@@ -334,17 +342,13 @@ pub(super) fn limits(ctx: &Context) -> Result<Figure, String> {
         );
     }
     let caption = format!(
-        "Each line the crossings are read from ({}), its one-sided {level}% {}, and the limits (dashed); ticks on a limit mark the crossings. Crossings: {}.{marks} {}",
+        "Each line the crossings are read from ({}), its {}, and the limits (dashed); ticks on a limit mark the crossings. Crossings: {}.{marks} {}",
         match model {
             "pooled" => "the pooled line",
             "common-slope" => "parallel lines",
             _ => "each group's own line",
         },
-        if first.bound == "prediction" {
-            "prediction bound for a single future result"
-        } else {
-            "confidence bound of the mean"
-        },
+        crate::report::sections::bound_phrase(&first.bound, &first.band, first.confidence),
         if crossings.is_empty() {
             "none".to_string()
         } else {

@@ -70,20 +70,31 @@ fn equivalence(b: &mut Builder, c: &Ctx, e: &crate::results::Equivalence) {
         )),
     ]);
     b.para(runs);
+    equivalence_table(b, &e.pairs, &m, e.alpha);
+}
+
+/// One row per pair: difference, (1 − 2α) interval, both one-sided p-values and the
+/// reading, against ±`m` (the margin as the report writes it).
+pub(super) fn equivalence_table(
+    b: &mut Builder,
+    pairs: &[crate::results::EquivalencePair],
+    m: &str,
+    alpha: f64,
+) {
     b.table_aligned(
         vec![
             cell("pair"),
             cell("difference"),
             cell(format!(
                 "{}% interval",
-                crate::number::trimmed(100.0 * (1.0 - 2.0 * e.alpha), 4)
+                crate::number::trimmed(100.0 * (1.0 - 2.0 * alpha), 4)
             )),
             cell(format!("p, at or below −{m}")),
             cell(format!("p, at or above +{m}")),
             cell("reading"),
         ],
         aligns("lrlrrl"),
-        e.pairs
+        pairs
             .iter()
             .map(|q| {
                 vec![

@@ -8,7 +8,9 @@ use crate::report::doc::{Builder, Inline, t, v};
 pub(super) fn section(b: &mut Builder, c: &Ctx) {
     let r = c.r;
     b.section(vec![t("When the mean reaches a limit")]);
-    if let Some(pool) = &r.pooling {
+    if let Some(pool) = r.pooling.as_ref().filter(|p| p.rule == "equivalence") {
+        equivalence_pooling(b, c, pool);
+    } else if let Some(pool) = &r.pooling {
         b.para(vec![
             t("Lines were pooled step by step ("),
             Inline::Cite(Work::IchQ1e2003),
@@ -50,22 +52,15 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
         b.para(super::summary::limits_sentence(c, reading));
     }
     let model = r.limits.first().map_or("", |l| l.model.as_str());
-    let conf = r.limits.first().map_or(String::new(), |l| {
-        format!("{}%", trimmed(100.0 * l.confidence, 4))
-    });
-    let prediction = r.limits.first().is_some_and(|l| l.bound == "prediction");
     let two_sided = r.limits.first().is_some_and(|l| l.two_sided);
+    let simultaneous = r.limits.first().is_some_and(|l| l.band == "simultaneous");
+    let phrase = r.limits.first().map_or(String::new(), |l| {
+        super::bound_phrase(&l.bound, &l.band, l.confidence)
+    });
     b.para(vec![
         t("Each crossing is the "),
         v(&c.x),
-        t(format!(
-            " value where the one-sided {conf} {} ",
-            if prediction {
-                "prediction bound for a single future"
-            } else {
-                "confidence bound of the mean"
-            }
-        )),
+        t(format!(" value where the {phrase} of ")),
         v(&c.y),
         t(format!(
             " meets the limit, read from {}.",
@@ -77,7 +72,17 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
             }
         )),
     ]);
-    if two_sided && let Some(crate::report::doc::Block::Paragraph(runs)) = b.blocks.last_mut() {
+    if simultaneous && let Some(crate::report::doc::Block::Paragraph(runs)) = b.blocks.last_mut() {
+        runs.extend([
+            t(" The band ("),
+            Inline::Cite(Work::WorkingHotelling1929),
+            t(") holds for every covariate value of a line at once, both sides together, so a crossing read from it holds wherever along the line it falls; for one limit it is conservative."),
+        ]);
+    }
+    if two_sided
+        && !simultaneous
+        && let Some(crate::report::doc::Block::Paragraph(runs)) = b.blocks.last_mut()
+    {
         runs.extend([
             t(" With both limits, each side uses the one-sided level (1 + confidence)/2, so the two sides together hold at the plan's confidence ("),
             Inline::Cite(Work::IchQ1e2003),
@@ -187,4 +192,87 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
         Inline::Cite(Work::IchQ1e2003),
         t(") and a qualified person require. Whether, and how far, an estimate may be extrapolated beyond the observed data is for that guidance to decide."),
     ]);
+}
+
+/// Equivalence-based pooling: the two steps with their margins and outcomes, then
+/// the pairs of each step that ran.
+fn equivalence_pooling(b: &mut Builder, c: &Ctx, pool: &crate::results::Pooling) {
+    let alpha = pool.equivalence_alpha.unwrap_or(c.r.model.alpha);
+    let slope_margin = sig(pool.slope_margin.unwrap_or(f64::NAN), 4);
+    let line_margin = sig(pool.intercept_margin.unwrap_or(f64::NAN), 4);
+    let intro = vec![
+        t("Lines were pooled step by step by equivalence ("),
+        Inline::Cite(Work::Llabres2000),
+        t("; "),
+        Inline::Cite(Work::TsongChenChen2003),
+        t(format!(
+            "): a step pools only when every pair of groups is shown within its margin by two one-sided tests at {} each (",
+            level(alpha)
+        )),
+        Inline::Cite(Work::Schuirmann1987),
+        t(format!(
+            "), its {}% interval inside ±margin; a pair not shown equivalent keeps the groups apart. The tests of difference (p = {} for the slopes, {} for the intercepts) are given for comparison and decide nothing here.",
+            trimmed(100.0 * (1.0 - 2.0 * alpha), 4),
+            p(pool.slopes_p),
+            p(pool.intercepts_p)
+        )),
+    ];
+    b.para(intro);
+    let count = |pairs: &[crate::results::EquivalencePair]| {
+        let shown = pairs
+            .iter()
+            .filter(|q| q.reading == "shown-equivalent")
+            .count();
+        format!("{shown} of {}", pairs.len())
+    };
+    let (one, two) = match pool.decision.as_str() {
+        "separate" => ("no: separate lines", "not reached"),
+        "common-slope" => ("yes: one slope", "no: parallel lines"),
+        _ => ("yes: one slope", "yes: one pooled line"),
+    };
+    let mut slope_q = vec![t(format!("are the slopes within ±{slope_margin} "))];
+    slope_q.extend(c.slope_unit());
+    slope_q.push(t("?"));
+    let line_q = vec![t(format!(
+        "given one slope, are the lines within ±{}?",
+        super::with_unit(line_margin.clone(), &c.y_unit)
+    ))];
+    b.table(
+        vec![
+            cell("step"),
+            cell("question"),
+            cell("pairs shown equivalent"),
+            cell("outcome"),
+        ],
+        2,
+        vec![
+            vec![
+                cell("1"),
+                slope_q,
+                cell(count(&pool.slope_pairs)),
+                cell(one),
+            ],
+            vec![
+                cell("2"),
+                line_q,
+                cell(if pool.intercept_pairs.is_empty() {
+                    "not reached".to_string()
+                } else {
+                    count(&pool.intercept_pairs)
+                }),
+                cell(two),
+            ],
+        ],
+    );
+    if let Some(crate::report::doc::Block::Table(tb)) = b.blocks.last_mut() {
+        tb.align[3] = crate::report::doc::Align::Left;
+    }
+    b.para(vec![t("Step 1, slope differences, first − second:")]);
+    super::gate::equivalence_table(b, &pool.slope_pairs, &slope_margin, alpha);
+    if !pool.intercept_pairs.is_empty() {
+        b.para(vec![t(
+            "Step 2, distances between the parallel lines (differences of intercepts on the common slope), first − second:",
+        )]);
+        super::gate::equivalence_table(b, &pool.intercept_pairs, &line_margin, alpha);
+    }
 }

@@ -158,11 +158,25 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
         } else {
             "one-sided confidence bound of the mean line"
         };
-        checks.push(t(format!(
-            " Crossing points are where the {bound} meets the limit, at a one-sided level of {}%, solved exactly from the bound's closed form and checked numerically",
-            crate::number::trimmed(100.0 * first.confidence, 4)
-        )));
-        if first.two_sided {
+        if first.band == "simultaneous" {
+            checks.extend([
+                t(format!(
+                    " Crossing points are where the {}% Working–Hotelling band of the mean line (",
+                    crate::number::trimmed(100.0 * first.confidence, 4)
+                )),
+                cite(Work::WorkingHotelling1929),
+                t(format!(
+                    "; critical value √(2 F({}; 2, df)) in place of Student's t), which holds for every covariate value and both sides at once, meets the limit, solved exactly from the bound's closed form and checked numerically",
+                    crate::number::trimmed(first.confidence, 4)
+                )),
+            ]);
+        } else {
+            checks.push(t(format!(
+                " Crossing points are where the {bound} meets the limit, at a one-sided level of {}%, solved exactly from the bound's closed form and checked numerically",
+                crate::number::trimmed(100.0 * first.confidence, 4)
+            )));
+        }
+        if first.two_sided && first.band != "simultaneous" {
             checks.extend([
                 t("; with a lower and an upper limit each side uses the one-sided level (1 + confidence)/2, so that both sides together hold at the plan's confidence ("),
                 cite(Work::IchQ1e2003),
@@ -176,7 +190,22 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
                 crate::number::trimmed(s.round_to, 4)
             )));
         }
-        if let Some(pool) = &r.pooling {
+        if let Some(pool) = r.pooling.as_ref().filter(|p| p.rule == "equivalence") {
+            checks.extend([
+                t("; lines were pooled in the two steps of "),
+                cite(Work::IchQ1e2003),
+                t(", each decided by equivalence ("),
+                cite(Work::Llabres2000),
+                t("; "),
+                cite(Work::TsongChenChen2003),
+                t(format!(
+                    "): one slope when every pair of slopes was shown within ±{}, then one line when every pair of parallel lines was shown within ±{}, by two one-sided tests at {} each with classical standard errors",
+                    crate::number::sig(pool.slope_margin.unwrap_or(f64::NAN), 4),
+                    crate::number::sig(pool.intercept_margin.unwrap_or(f64::NAN), 4),
+                    level(pool.equivalence_alpha.unwrap_or(r.model.alpha))
+                )),
+            ]);
+        } else if let Some(pool) = &r.pooling {
             checks.extend([
                 t("; lines were pooled by the two-step procedure of "),
                 cite(Work::IchQ1e2003),

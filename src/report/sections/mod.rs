@@ -330,3 +330,19 @@ pub(crate) fn lead(label: &str, mut rest: Runs) -> Runs {
     out.append(&mut rest);
     out
 }
+
+/// The words for the bound the crossings are read from: "one-sided 95% confidence
+/// bound of the mean", or for the simultaneous band "95% simultaneous
+/// (Working–Hotelling) confidence band of the mean".
+pub(super) fn bound_phrase(bound: &str, band: &str, confidence: f64) -> String {
+    let level = crate::number::trimmed(100.0 * confidence, 4);
+    match (bound, band) {
+        ("prediction", _) => {
+            format!("one-sided {level}% prediction bound for a single future result")
+        }
+        (_, "simultaneous") => {
+            format!("{level}% simultaneous (Working–Hotelling) confidence band of the mean")
+        }
+        _ => format!("one-sided {level}% confidence bound of the mean"),
+    }
+}

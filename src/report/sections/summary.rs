@@ -265,6 +265,22 @@ fn pooling_lead(c: &Ctx, l: &LimitsReading) -> Runs {
     let mut runs = Vec::new();
     if let Some(pool) = &r.pooling {
         let steps = match pool.stopped_at.as_deref() {
+            None if pool.rule == "equivalence" => format!(
+                "by equivalence (slopes within ±{}{}) chose {}",
+                crate::number::sig(pool.slope_margin.unwrap_or(f64::NAN), 4),
+                match pool.decision.as_str() {
+                    "separate" => ": not every pair shown",
+                    "common-slope" => {
+                        ", then lines within ±{}: not every pair shown"
+                    }
+                    _ => ", then lines within ±{}",
+                }
+                .replace(
+                    "{}",
+                    &crate::number::sig(pool.intercept_margin.unwrap_or(f64::NAN), 4)
+                ),
+                pooled_model(&pool.decision)
+            ),
             Some(step) => {
                 format!("stopped at its {step} step, whose test cannot be computed (0/0)")
             }
@@ -288,15 +304,7 @@ fn pooling_lead(c: &Ctx, l: &LimitsReading) -> Runs {
 
 /// What the limits come to, from the record's limits reading.
 pub(super) fn limits_sentence(c: &Ctx, l: &LimitsReading) -> Runs {
-    let bound = format!(
-        "one-sided {}% {}",
-        trimmed(100.0 * l.confidence, 4),
-        if l.bound == "prediction" {
-            "prediction bound for a single future result"
-        } else {
-            "confidence bound of the mean"
-        }
-    );
+    let bound = super::bound_phrase(&l.bound, &l.band, l.confidence);
     let line = |runs: &mut Runs| {
         if let Some(level) = &l.level {
             if level == "pooled" && l.model == "pooled" {
