@@ -1137,3 +1137,31 @@ fn a_simultaneous_band_for_a_prediction_bound_is_a_plan_error_at_the_band() {
         ])
         .run();
 }
+
+#[test]
+fn many_to_one_reports_simultaneous_intervals_and_says_how() {
+    let out = Test::new("many_to_one_report")
+        .plan(&many_to_one_plan(false))
+        .data(THREE_PLOTS)
+        .succeeds()
+        .run();
+    let r = out.json("out/results.json");
+    assert_eq!(r["many_to_one"]["reference"], "north");
+    assert_eq!(r["many_to_one"]["adjusted"]["method"], "multivariate-t");
+    let report = out.read("out/report.md");
+    for fragment in [
+        "Every group is compared with the reference, north (the first level)",
+        "| pair | differ? | difference | 95% interval | p, many-to-one | simultaneous 95% interval |",
+        "simultaneous 95% interval | SE |",
+        "Dunnett, C. W. (1955)",
+        "Genz, A. & Bretz, F. (2002)",
+        "| ridge − north |",
+    ] {
+        assert!(report.contains(fragment), "{fragment}\n{report}");
+    }
+    assert!(
+        !report.contains("| ridge − south |"),
+        "only pairs against the reference"
+    );
+    assert!(!report.contains("Tukey–Kramer p"), "no Tukey–Kramer column");
+}
