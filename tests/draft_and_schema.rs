@@ -535,7 +535,7 @@ fn schema_and_loader_refuse_the_same_broken_plans() {
     let v = validator();
     assert!(schema_errors(&v, &as_json(GOOD)).is_empty());
     load(GOOD).unwrap();
-    let cases: [(&str, String); 24] = [
+    let cases: [(&str, String); 28] = [
         ("unknown top-level key", format!("colour = \"red\"\n{GOOD}")),
         (
             "unknown key in [tests]",
@@ -607,6 +607,28 @@ fn schema_and_loader_refuse_the_same_broken_plans() {
             format!("{GOOD}[[data.keep]]\ncolumn = \"s\"\none_of = []\n"),
         ),
         ("empty formats", format!("{GOOD}[report]\nformats = []\n")),
+        (
+            "pooling margin without the equivalence rule",
+            GOOD.replace("alpha = 0.05", "alpha = 0.05\npooling_slope_margin = 0.05"),
+        ),
+        (
+            "equivalence pooling without lot pooling",
+            GOOD.replace(
+                "alpha = 0.05",
+                "pooling_rule = \"equivalence\"\npooling_slope_margin = 0.05\npooling_intercept_margin = 1.0",
+            ),
+        ),
+        (
+            "equivalence pooling without its intercept margin",
+            GOOD.replace(
+                "alpha = 0.05",
+                "procedure = \"lot-pooling\"\npooling_rule = \"equivalence\"\npooling_slope_margin = 0.05",
+            ),
+        ),
+        (
+            "a simultaneous band for a prediction bound",
+            format!("{GOOD}[limits]\nlower = 1.0\nbound = \"prediction\"\nband = \"simultaneous\"\n"),
+        ),
         (
             "repeated format",
             format!("{GOOD}[report]\nformats = [\"json\", \"json\"]\n"),
@@ -838,6 +860,28 @@ fn every_schema_key_is_described_closed_and_accepted_by_the_loader() {
             if name == "tests.gate" && value == json!("equivalence") {
                 let companion = ["tests".to_string(), "slope_margin".to_string()];
                 set(&mut doc, &schema, &companion, json!(0.05));
+            }
+            let pooling_keys = [
+                "tests.pooling_rule",
+                "tests.pooling_slope_margin",
+                "tests.pooling_intercept_margin",
+            ];
+            if pooling_keys.contains(&name.as_str())
+                && (name != "tests.pooling_rule" || value == json!("equivalence"))
+            {
+                for (key, v) in [
+                    ("procedure", json!("lot-pooling")),
+                    ("pooling_rule", json!("equivalence")),
+                    ("pooling_slope_margin", json!(0.05)),
+                    ("pooling_intercept_margin", json!(1.0)),
+                ] {
+                    set(
+                        &mut doc,
+                        &schema,
+                        &["tests".to_string(), key.to_string()],
+                        v,
+                    );
+                }
             }
             set(&mut doc, &schema, path, value.clone());
             let errors = schema_errors(&v, &doc);

@@ -152,8 +152,28 @@ pub(super) struct RawTransform {
 #[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 #[schemars(extend(
-    "if" = {"properties": {"gate": {"const": "equivalence"}}, "required": ["gate"]},
-    "then" = {"required": ["slope_margin"]}
+    "allOf" = [
+        {
+            "if": {"properties": {"gate": {"const": "equivalence"}}, "required": ["gate"]},
+            "then": {"required": ["slope_margin"]}
+        },
+        {
+            "if": {"properties": {"pooling_rule": {"const": "equivalence"}}, "required": ["pooling_rule"]},
+            "then": {
+                "required": ["procedure", "pooling_slope_margin", "pooling_intercept_margin"],
+                "properties": {"procedure": {"const": "lot-pooling"}}
+            }
+        },
+        {
+            "anyOf": [
+                {"not": {"anyOf": [
+                    {"required": ["pooling_slope_margin"]},
+                    {"required": ["pooling_intercept_margin"]}
+                ]}},
+                {"required": ["pooling_rule"], "properties": {"pooling_rule": {"const": "equivalence"}}}
+            ]
+        }
+    ]
 ))]
 pub(super) struct RawTests {
     /// Level of the group comparisons and of the intervals (which are at 1 - alpha).
@@ -271,6 +291,10 @@ impl Covariance {
         {"not": {"required": ["storage", "max_beyond"]}}
     ],
     "examples" = [{"lower": 95.0, "confidence": 0.95}]
+))]
+#[schemars(extend(
+    "if" = {"properties": {"band": {"const": "simultaneous"}}, "required": ["band"]},
+    "then" = {"not": {"properties": {"bound": {"const": "prediction"}}, "required": ["bound"]}}
 ))]
 pub(super) struct RawLimits {
     /// The mean response must stay at or above this value (on the response's scale as
