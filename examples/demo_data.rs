@@ -311,6 +311,52 @@ fn stability_lots() -> String {
     out
 }
 
+/// Invented three-attribute stability study of a film-coated tablet: three lots
+/// pulled at months 0–18, two tablets per pull, each tested for assay (% of label
+/// claim, limits 95.0–105.0), a degradation product (% of assay, at most 0.50) and
+/// hardness (N, at least 40). Assay falls slowly, the degradant grows and reaches
+/// its limit first, and the tablets harden a little on storage, so hardness never
+/// approaches its lower limit. One hardness test at month 9 of lot FC-03 was not
+/// done (left empty), so that attribute uses one row fewer. Its own seed, so the
+/// other files keep their bytes.
+fn three_attributes() -> String {
+    // (lot, assay at month 0, degradant at month 0, hardness at month 0)
+    let lots: [(&str, f64, f64, f64); 3] = [
+        ("FC-01", 100.6, 0.06, 62.0),
+        ("FC-02", 99.9, 0.08, 59.5),
+        ("FC-03", 100.9, 0.05, 64.0),
+    ];
+    let pulls = [0u32, 3, 6, 9, 12, 18];
+    // Change per month, and the noise sd, of each attribute.
+    let (assay_slope, assay_sd) = (-0.11, 0.35);
+    let (degradant_slope, degradant_sd) = (0.018, 0.012);
+    let (hardness_slope, hardness_sd) = (0.35, 1.2);
+    let mut rng = Rng::new(0x3A77_2026);
+    let mut out = String::from("lot,months,tablet,assay_pct,degradant_pct,hardness_n\n");
+    for (lot, assay0, degradant0, hardness0) in lots {
+        for month in pulls {
+            for tablet in 1..=2 {
+                let m = f64::from(month);
+                let assay = assay0 + assay_slope * m + assay_sd * rng.normal();
+                let degradant =
+                    (degradant0 + degradant_slope * m + degradant_sd * rng.normal()).max(0.0);
+                let hardness = hardness0 + hardness_slope * m + hardness_sd * rng.normal();
+                let hardness = if lot == "FC-03" && month == 9 && tablet == 2 {
+                    String::new()
+                } else {
+                    format!("{hardness:.1}")
+                };
+                writeln!(
+                    out,
+                    "{lot},{month},{tablet},{assay:.1},{degradant:.3},{hardness}"
+                )
+                .expect("writing to a String cannot fail");
+            }
+        }
+    }
+    out
+}
+
 /// The two nursery seasons. 2025: all beds share one slope (parallel lines, so
 /// the equal-slopes gate passes). 2026: the shade bed's seedlings stretch for
 /// light and gain little mass per centimetre, so its slope is clearly lower and
@@ -369,6 +415,7 @@ fn main() -> ExitCode {
     }
     files.push(("feed-lots-2026.csv", feed_lots()));
     files.push(("stability-lots-2026.csv", stability_lots()));
+    files.push(("tablet-attributes-2026.csv", three_attributes()));
     for (name, text) in files {
         let path = dir.join(name);
         if let Err(e) = fs::write(&path, text.as_bytes()) {

@@ -11,12 +11,14 @@ use std::collections::BTreeMap;
 mod decision;
 mod evidence;
 mod finite;
+mod study;
 pub use decision::{Decision, DecisionModels, Finding, GateReading, LimitsReading};
 pub use evidence::{
     BandCritical, Bands, Equivalence, EquivalencePair, ManyToOne, NextSeason, Robust,
     RobustDifference, RobustMean, RobustWald, SimultaneousFamily,
 };
 pub use finite::first_non_finite;
+pub use study::{Attribute, AttributeReading, Study, StudyAnswer};
 
 /// Everything a run found.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]

@@ -1165,3 +1165,99 @@ fn many_to_one_reports_simultaneous_intervals_and_says_how() {
     );
     assert!(!report.contains("Tukey–Kramer p"), "no Tukey–Kramer column");
 }
+
+// ---- several attributes ([[responses]]) ----------------------------------------
+
+/// Invented: two attributes of the three plots, leaf mass and a second column.
+const TWO_ATTRIBUTES: &str = "\
+plot,length_cm,mass_g,width_cm
+north,4.0,1.12,2.0
+north,5.5,1.58,2.6
+north,7.0,2.05,3.1
+north,8.5,2.41,3.9
+ridge,4.5,1.71,2.2
+ridge,6.0,2.10,2.8
+ridge,7.5,2.66,3.3
+ridge,9.0,3.02,4.1
+";
+
+/// A plan with two attributes: `extra` at line 7 (one line) or 7–8 (two), and with
+/// a one-line `extra` the entries' first lines at 9 and 11.
+fn attributes_plan(first: &str, second: &str, extra: &str) -> String {
+    format!(
+        "title = \"Two leaf attributes (invented test data)\"\n[data]\npath = \"data.csv\"\n[model]\ncovariate = \"length_cm\"\ngroup = \"plot\"\n{extra}\n[[responses]]\n{first}\n[[responses]]\n{second}\n[report]\nout = \"out\"\n"
+    )
+}
+
+#[test]
+fn several_attributes_refuse_what_would_be_ambiguous_or_lost() {
+    let mass = "column = \"mass_g\"";
+    let width = "column = \"width_cm\"";
+    let cases: [(&str, String, &str, &str); 6] = [
+        (
+            "attributes_unknown_limit_key",
+            attributes_plan(&format!("{mass}\nlimits = {{ lowr = 1.0 }}"), width, ""),
+            "unknown key `lowr`",
+            "--> plan.toml:10:12",
+        ),
+        (
+            "attributes_and_response",
+            attributes_plan(mass, width, "response = \"mass_g\""),
+            "model.response is given beside [[responses]]",
+            "--> plan.toml:7:12",
+        ),
+        (
+            "attributes_twice",
+            attributes_plan(mass, mass, ""),
+            "[[responses]] lists the column `mass_g` twice",
+            "--> plan.toml:11:10",
+        ),
+        (
+            "attributes_shared_limit",
+            attributes_plan(mass, width, "[limits]\nlower = 1.0"),
+            "[limits] gives a lower or upper limit beside [[responses]]",
+            "--> plan.toml:8:9",
+        ),
+        (
+            "attributes_lower_above_upper",
+            attributes_plan(
+                &format!("{mass}\nlimits = {{ lower = 3.0, upper = 2.0 }}"),
+                width,
+                "",
+            ),
+            "limits.lower (3) must be below limits.upper (2)",
+            "--> plan.toml:10:33",
+        ),
+        (
+            "attributes_negative_max_beyond",
+            attributes_plan(
+                &format!("{mass}\nlimits = {{ lower = 1.0 }}"),
+                width,
+                "[limits]\nmax_beyond = -1.0",
+            ),
+            "limits.max_beyond must be a finite number of at least 0, found -1",
+            "--> plan.toml:8:14",
+        ),
+    ];
+    for (name, plan, message, at) in cases {
+        Test::new(name)
+            .file("plan.toml", plan)
+            .file("data.csv", TWO_ATTRIBUTES)
+            .fails()
+            .stderr_has(&[message, at])
+            .run();
+    }
+}
+
+#[test]
+fn an_attribute_whose_column_is_absent_points_at_its_entry() {
+    Test::new("attributes_absent_column")
+        .file(
+            "plan.toml",
+            attributes_plan("column = \"mass_g\"", "column = \"widht_cm\"", ""),
+        )
+        .file("data.csv", TWO_ATTRIBUTES)
+        .fails()
+        .stderr_has(&["widht_cm", "width_cm", "--> plan.toml:11:10"])
+        .run();
+}

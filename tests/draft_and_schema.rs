@@ -824,7 +824,9 @@ fn without_spans(mut plan: Plan) -> Plan {
 fn every_schema_key_is_described_closed_and_accepted_by_the_loader() {
     let schema = schema();
     let v = validator();
-    let base = minimal(&schema);
+    let mut base = minimal(&schema);
+    // A response is required unless [[responses]] lists the attributes.
+    base["model"]["response"] = json!("dry_mass_g");
     let base_text = toml::to_string(&base).unwrap();
     let base_plan = without_spans(load(&base_text).unwrap());
     let paths = all_property_paths();
@@ -883,7 +885,18 @@ fn every_schema_key_is_described_closed_and_accepted_by_the_loader() {
                     );
                 }
             }
+            // [[responses]] takes the place of model.response.
+            if path[0] == "responses" {
+                doc["model"].as_object_mut().unwrap().remove("response");
+            }
             set(&mut doc, &schema, path, value.clone());
+            // A single response's [limits] needs a limit of its own.
+            if path[0] == "limits" {
+                let limits = doc["limits"].as_object_mut().unwrap();
+                if !limits.contains_key("lower") && !limits.contains_key("upper") {
+                    limits.insert("lower".into(), json!(-1.0e9));
+                }
+            }
             let errors = schema_errors(&v, &doc);
             assert!(errors.is_empty(), "{name} = {value}: {errors:?}");
             let text = toml::to_string(&doc).unwrap();
@@ -908,7 +921,7 @@ fn every_schema_key_is_described_closed_and_accepted_by_the_loader() {
 }
 
 /// The serde struct behind each table of the plan, and where it sits in the schema.
-const TABLES: [(&str, &str); 10] = [
+const TABLES: [(&str, &str); 12] = [
     ("RawPlan", ""),
     ("RawData", "data"),
     ("RawKeep", "data.keep.[]"),
@@ -919,13 +932,19 @@ const TABLES: [(&str, &str); 10] = [
     ("RawChecks", "checks"),
     ("RawLimits", "limits"),
     ("RawReport", "report"),
+    ("RawResponse", "responses.[]"),
+    ("RawResponseLimits", "responses.[].limits"),
 ];
 
 /// The serde enums of plan values, and the schema nodes that hold their names.
 const ENUMS: [(&str, &[&str]); 7] = [
     (
         "Transform",
-        &["model.transform.response", "model.transform.covariate"],
+        &[
+            "model.transform.response",
+            "model.transform.covariate",
+            "responses.[].transform",
+        ],
     ),
     ("Comparisons", &["tests.comparisons"]),
     ("Regions", &["tests.regions"]),
@@ -1054,6 +1073,10 @@ fn every_serde_key_and_value_is_in_the_schema() {
             };
             let mut doc = minimal(&schema);
             set(&mut doc, &schema, &steps, value);
+            // A response is required unless [[responses]] lists the attributes.
+            if steps[0] != "responses" {
+                doc["model"]["response"] = json!("dry_mass_g");
+            }
             let text = toml::to_string(&doc).unwrap();
             load(&text).unwrap_or_else(|e| panic!("{dotted}.{key}: {e}\n{text}"));
             let parent = steps[..steps.len() - 1]

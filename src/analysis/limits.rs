@@ -942,7 +942,7 @@ mod tests {
         // its crossing comes earlier; with both limits it stays at the confidence.
         let l = line(-0.2);
         let wh = l.critical(BandKind::Simultaneous, 0.95, 0.95);
-        assert_eq!(wh, working_hotelling(0.05, 18.0));
+        assert_eq!(wh, working_hotelling(1.0 - 0.95, 18.0));
         assert_eq!(l.critical(BandKind::Simultaneous, 0.975, 0.95), wh);
         assert_eq!(l.critical(BandKind::Pointwise, 0.95, 0.95), t95());
         let simultaneous = solved(l.crossing(95.0, true, wh));

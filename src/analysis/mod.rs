@@ -29,6 +29,8 @@ mod regions;
 mod robust;
 mod scale;
 mod sensitivity;
+mod study;
+pub use study::study;
 
 pub use error::AnalysisError;
 

@@ -18,6 +18,35 @@ pub(super) struct Analysed {
     pub(super) data_path: PathBuf,
 }
 
+/// Every attribute of the plan read and analysed, in the plan's order: one entry for
+/// a single response. Each attribute is a whole plan of its own (see
+/// `plan::Plan::attributes`), so each reads the data with its own column's missing
+/// values and drops.
+pub(super) fn analyse_all(lp: &LoadedPlan, data_path: &Path) -> Result<Vec<Analysed>, Diagnostic> {
+    if lp.plan.attributes.is_empty() {
+        return Ok(vec![analyse(lp, data_path)?]);
+    }
+    if lp.plan.data.path == STDIN && data_path == lp.dir.join(STDIN) {
+        return Err(Diagnostic::new(
+            "a plan with several [[responses]] reads its data once per attribute, and standard input can be read only once"
+                .to_string(),
+        )
+        .at(lp.snippet(lp.plan.spans.data_path.clone(), "named here"))
+        .help("save the data to a file and name it in data.path"));
+    }
+    lp.plan
+        .attributes
+        .iter()
+        .map(|plan| {
+            let one = LoadedPlan {
+                plan: plan.clone(),
+                ..lp.clone()
+            };
+            analyse(&one, data_path)
+        })
+        .collect()
+}
+
 /// Reads the data (checking any pin) and runs the analysis.
 pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Diagnostic> {
     let plan = &lp.plan;

@@ -107,6 +107,15 @@ pub(super) fn load_run(path: &Path) -> Result<crate::seasons::Run, Diagnostic> {
         Diagnostic::new(format!("cannot read {}: {e}", file.display()))
             .help("diff takes results.json files or folders written by `slopewise run`")
     })?;
+    // A study of several attributes holds one results per attribute: say so rather
+    // than report a missing key.
+    if serde_json::from_slice::<crate::results::Study>(&bytes).is_ok() {
+        return Err(Diagnostic::new(format!(
+            "{} holds several attributes ([[responses]]); diff compares runs of one response",
+            file.display()
+        ))
+        .help("comparing studies of several attributes across seasons is not offered yet; diff a single-response plan per attribute"));
+    }
     let results = serde_json::from_slice(&bytes).map_err(|e| {
         Diagnostic::new(format!(
             "{} is not a slopewise results.json: {e}",

@@ -8,6 +8,7 @@ use crate::digest::sha256_hex;
 use crate::plan::{self, Plan};
 
 /// A plan file read and parsed, with what error messages need to point into it.
+#[derive(Clone)]
 pub(super) struct LoadedPlan {
     pub(super) plan: Plan,
     /// The path as shown in messages.

@@ -4,7 +4,7 @@ use std::io::{IsTerminal, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
-use super::analyse::{Analysed, analyse};
+use super::analyse::{Analysed, analyse_all};
 use super::files::{read_tree, relative_to};
 use super::plan_file::{LoadedPlan, load_plan, target_of};
 use super::say;
@@ -115,29 +115,141 @@ pub(super) fn run_plans(plans: &[PathBuf], out: Option<&Path>) -> ExitCode {
     }
 }
 
-/// Renders every output the plan asks for, plus the plan copy.
-pub(super) fn render(lp: &LoadedPlan, a: &Analysed) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
+/// Renders every output the plan asks for, plus the plan copy: one response's
+/// report, or for several attributes the study's.
+pub(super) fn render_all(
+    lp: &LoadedPlan,
+    analysed: &[Analysed],
+) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
+    match analysed {
+        [one] if lp.plan.attributes.is_empty() => render(lp, one),
+        several => render_study(lp, several),
+    }
+}
+
+/// The figures of one analysis, or the results with a warning when they cannot be
+/// drawn (a figure never costs the user the report).
+fn draw(
+    a: &Analysed,
+) -> (
+    Vec<report::figures::Figure>,
+    Option<crate::results::Results>,
+) {
+    let points = analysis::figure_points(&a.dataset, &a.results);
+    match report::figures::render(&a.results, &points) {
+        Ok(drawn) => (drawn, None),
+        Err(e) => {
+            let mut r = a.results.clone();
+            r.warnings.push(format!(
+                "The figures could not be drawn ({e}), so this report has none; every number is unaffected."
+            ));
+            (Vec::new(), Some(r))
+        }
+    }
+}
+
+/// The run folder's name for an attribute's figures: its column with anything but
+/// letters, digits, `-` and `_` replaced, numbered when two columns come out alike.
+fn figure_folder(column: &str, taken: &[String]) -> String {
+    let mut slug: String = column
+        .chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() || c == '-' || c == '_' {
+                c
+            } else {
+                '_'
+            }
+        })
+        .collect();
+    if slug.is_empty() {
+        slug = "attribute".into();
+    }
+    let mut name = slug.clone();
+    let mut n = 2;
+    while taken.contains(&name) {
+        name = format!("{slug}-{n}");
+        n += 1;
+    }
+    name
+}
+
+/// The outputs of a plan with several attributes: each attribute's figures under
+/// `figures/<column>/`, one `results.json` and one report for the study.
+fn render_study(
+    lp: &LoadedPlan,
+    analysed: &[Analysed],
+) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
+    let formats = &lp.plan.report.formats;
+    let wants = |f: Format| formats.contains(&f);
+    let mut files = vec![(audit::PLAN_COPY.to_string(), lp.bytes.clone())];
+    let mut taken = Vec::new();
+    let mut attributes = Vec::new();
+    let mut figure_refs = Vec::new();
+    for a in analysed {
+        let column = a.results.model.response.clone();
+        let (drawn, with_warning) = if wants(Format::Markdown) || wants(Format::Pdf) {
+            draw(a)
+        } else {
+            (Vec::new(), None)
+        };
+        let folder = figure_folder(&column, &taken);
+        let mut refs = Vec::new();
+        for fig in drawn {
+            let file = fig
+                .file
+                .replacen("figures/", &format!("figures/{folder}/"), 1);
+            refs.push(report::FigureRef {
+                file: file.clone(),
+                title: fig.title.clone(),
+                caption: fig.caption.clone(),
+                width: fig.width,
+            });
+            files.push((file, fig.svg.into_bytes()));
+        }
+        taken.push(folder);
+        figure_refs.push(refs);
+        attributes.push((column, with_warning.unwrap_or_else(|| a.results.clone())));
+    }
+    let study = analysis::study(&lp.plan.title, attributes);
+    let rendered = |r: Result<String, report::ReportError>| {
+        r.map(String::into_bytes).map_err(|e| e.diagnostic())
+    };
+    if wants(Format::Json) {
+        files.push((
+            "results.json".to_string(),
+            rendered(report::study::json(&study))?,
+        ));
+    }
+    if wants(Format::Markdown) {
+        files.push((
+            "report.md".to_string(),
+            report::study::markdown(&study, &figure_refs).into_bytes(),
+        ));
+    }
+    if wants(Format::Pdf) {
+        files.push((
+            "report.typ".to_string(),
+            report::pdf::TEMPLATE.as_bytes().to_vec(),
+        ));
+        files.push((
+            "report-data.json".to_string(),
+            rendered(report::study::pdf_data(&study, &figure_refs))?,
+        ));
+    }
+    Ok(files)
+}
+
+/// Renders every output of a single-response plan, plus the plan copy.
+fn render(lp: &LoadedPlan, a: &Analysed) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
     let formats = &lp.plan.report.formats;
     let wants = |f: Format| formats.contains(&f);
     let mut files = vec![(audit::PLAN_COPY.to_string(), lp.bytes.clone())];
     let mut figure_refs = Vec::new();
-    let mut figures = Vec::new();
-    // A figure that cannot be drawn never costs the user the report: the run goes
-    // on without figures, and the results and the report say why.
-    let mut with_warning = None;
-    if wants(Format::Markdown) || wants(Format::Pdf) {
-        let points = analysis::figure_points(&a.dataset, &a.results);
-        match report::figures::render(&a.results, &points) {
-            Ok(drawn) => figures = drawn,
-            Err(e) => {
-                let mut r = a.results.clone();
-                r.warnings.push(format!(
-                    "The figures could not be drawn ({e}), so this report has none; every number is unaffected."
-                ));
-                with_warning = Some(r);
-            }
-        }
-    }
+    let (figures, with_warning) = if wants(Format::Markdown) || wants(Format::Pdf) {
+        draw(a)
+    } else {
+        (Vec::new(), None)
+    };
     let results = with_warning.as_ref().unwrap_or(&a.results);
     {
         for fig in figures {
@@ -265,8 +377,10 @@ pub(super) fn run_plan(plan_path: &Path, out: Option<&Path>) -> Result<PathBuf, 
     // A run killed mid-exchange left the old report aside: put it back first, so
     // even a run that fails below leaves the folder as the user had it.
     output::recover(&target).map_err(|e| e.diagnostic())?;
-    let analysed = analyse(&lp, &lp.dir.join(&lp.plan.data.path))?;
-    let files = render(&lp, &analysed)?;
-    write_outputs(&lp, &analysed, &files, &target, &target, None)?;
+    let analysed = analyse_all(&lp, &lp.dir.join(&lp.plan.data.path))?;
+    let files = render_all(&lp, &analysed)?;
+    // The attributes share the plan and the data, so the first one's provenance is
+    // the run's.
+    write_outputs(&lp, &analysed[0], &files, &target, &target, None)?;
     Ok(target)
 }

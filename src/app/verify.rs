@@ -4,11 +4,11 @@
 
 use std::path::{Path, PathBuf};
 
-use super::analyse::{analyse, hash_file};
+use super::analyse::{analyse_all, hash_file};
 use super::approve::{data_path, present, read_manifest};
 use super::files::read_tree;
 use super::plan_file::parse_plan;
-use super::run::{render, write_outputs};
+use super::run::{render_all, write_outputs};
 use super::say;
 use crate::audit::approval::{APPROVALS_DIR, Approval};
 use crate::audit::{self, keys};
@@ -181,8 +181,9 @@ fn rerun(
         ))
         .help("verify reruns on the recorded data only; restore that file, or run the plan again"));
     }
-    let a = analyse(&lp, &data_path)?;
-    let files = render(&lp, &a)?;
+    let all = analyse_all(&lp, &data_path)?;
+    let files = render_all(&lp, &all)?;
+    let a = &all[0];
     let scratch = tempfile::Builder::new()
         .prefix("slopewise-verify-")
         .tempdir()
@@ -190,7 +191,7 @@ fn rerun(
     let rerun_dir = scratch.path().join("run");
     let written = write_outputs(
         &lp,
-        &a,
+        a,
         &files,
         &rerun_dir,
         folder,

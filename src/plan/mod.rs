@@ -69,6 +69,9 @@ pub struct Plan {
     pub report: ReportSpec,
     /// Spans of the values, for error messages that point into the plan.
     pub spans: PlanSpans,
+    /// With `[[responses]]`: one whole single-response plan per attribute, in the
+    /// plan's order (this plan is the first of them). Empty for a single response.
+    pub attributes: Vec<Plan>,
 }
 
 /// The `[data]` table.
@@ -274,6 +277,106 @@ pub const DEFAULT_MISSING: [&str; 2] = ["", "NA"];
 pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
     let raw: schema::RawPlan =
         toml::from_str(source).map_err(|e| PlanError::from_toml(file, source, &e))?;
+    if raw.responses.is_empty() {
+        from_raw(file, source, &raw)
+    } else {
+        several(file, source, raw)
+    }
+}
+
+/// A plan with `[[responses]]`: each attribute becomes a whole single-response plan,
+/// validated exactly as if it had been written out with its column as
+/// `model.response`, its transform and unit under `[model]`, and its limits merged
+/// into the shared `[limits]`, so every check and every span of the single-response
+/// plan applies to it. The plan returned is the first attribute's, with all of them
+/// in [`Plan::attributes`].
+fn several(file: &str, source: &str, raw: schema::RawPlan) -> Result<Plan, PlanError> {
+    let err = |span: Range<usize>, message: String, help: &str| {
+        PlanError::new(file, source, span, message, help)
+    };
+    let model = raw.model.get_ref();
+    if let Some(r) = &model.response {
+        return Err(err(
+            r.span(),
+            "model.response is given beside [[responses]]".into(),
+            "list every attribute under [[responses]] (column, transform, units, limits), or remove [[responses]] for a single response",
+        ));
+    }
+    if model
+        .transform
+        .as_ref()
+        .is_some_and(|t| t.response.is_some())
+        || model.units.as_ref().is_some_and(|u| u.response.is_some())
+    {
+        return Err(err(
+            raw.model.span(),
+            "[model] sets the response's transform or unit beside [[responses]]".into(),
+            "give each attribute its own `transform` and `units` under [[responses]]",
+        ));
+    }
+    if let Some(v) = raw.limits.as_ref().and_then(|l| {
+        let l = l.get_ref();
+        l.lower.as_ref().or(l.upper.as_ref())
+    }) {
+        return Err(err(
+            v.span(),
+            "[limits] gives a lower or upper limit beside [[responses]]".into(),
+            "give each attribute its limits under its own `limits` table; [limits] keeps the shared settings (confidence, bound, band, storage, round_to)",
+        ));
+    }
+
+    let mut seen: Vec<&str> = Vec::new();
+    for r in &raw.responses {
+        let column = r.get_ref().column.get_ref().as_str();
+        if seen.contains(&column) {
+            return Err(err(
+                r.get_ref().column.span(),
+                format!("[[responses]] lists the column `{column}` twice"),
+                "list each attribute once",
+            ));
+        }
+        seen.push(column);
+    }
+    let mut attributes = Vec::new();
+    for r in &raw.responses {
+        let r = r.get_ref();
+        let mut one = raw.clone();
+        one.responses = Vec::new();
+        let span = one.model.span();
+        let mut m = one.model.get_ref().clone();
+        m.response = Some(r.column.clone());
+        let mut transform = m.transform.take().unwrap_or(schema::RawTransform {
+            response: None,
+            covariate: None,
+        });
+        transform.response = r.transform.clone();
+        m.transform = Some(transform);
+        let mut units = m.units.take().unwrap_or(schema::RawUnits {
+            response: None,
+            covariate: None,
+        });
+        units.response = r.units.clone();
+        m.units = Some(units);
+        one.model = Spanned::new(span, m);
+        one.limits = r.limits.as_ref().map(|own| {
+            let mut shared = raw
+                .limits
+                .as_ref()
+                .map(|l| l.get_ref().clone())
+                .unwrap_or_default();
+            shared.lower = own.get_ref().lower.clone();
+            shared.upper = own.get_ref().upper.clone();
+            Spanned::new(own.span(), shared)
+        });
+        attributes.push(from_raw(file, source, &one)?);
+    }
+    let mut plan = attributes[0].clone();
+    plan.attributes = attributes;
+    Ok(plan)
+}
+
+/// Validates one parsed plan with a single response.
+fn from_raw(file: &str, source: &str, raw: &schema::RawPlan) -> Result<Plan, PlanError> {
     let err = |span: Range<usize>, message: String, help: &str| {
         PlanError::new(file, source, span, message, help)
     };
@@ -347,7 +450,15 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
 
     let model_span = raw.model.span();
     let model = raw.model.get_ref();
-    let response = nonempty(&model.response, "model.response", &err)?;
+    let Some(response) = &model.response else {
+        return Err(err(
+            model_span,
+            "[model] names no response".into(),
+            "add `response = \"column\"` under [model], or list the attributes under [[responses]]",
+        ));
+    };
+    let response_span = response.span();
+    let response = nonempty(response, "model.response", &err)?;
     let covariate = nonempty(&model.covariate, "model.covariate", &err)?;
     let group = nonempty(&model.group, "model.group", &err)?;
     if covariate == response {
@@ -744,6 +855,7 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
     };
 
     Ok(Plan {
+        attributes: Vec::new(),
         title,
         checks,
         limits,
@@ -771,7 +883,7 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
         spans: PlanSpans {
             data_path: data.path.span(),
             data_sha256: data.sha256.as_ref().map(Spanned::span),
-            response: model.response.span(),
+            response: response_span,
             covariate: model.covariate.span(),
             group: model.group.span(),
             levels: level_spans,

@@ -24,9 +24,30 @@ impl JsonSchema for AdjustAt {
 /// A slopewise plan: which CSV to read, which columns are the response, the covariate
 /// and the group, how to test and what to write. Paths are relative to the folder
 /// holding the plan file. Unknown keys are errors.
-#[derive(Debug, Deserialize, JsonSchema)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 #[schemars(title = "slopewise plan")]
+#[schemars(extend("anyOf" = [
+    {
+        "properties": {
+            "model": {"required": ["response"]},
+            "responses": {"maxItems": 0},
+            "limits": {"anyOf": [{"required": ["lower"]}, {"required": ["upper"]}]}
+        }
+    },
+    {
+        "required": ["responses"],
+        "properties": {
+            "model": {"not": {"anyOf": [
+                {"required": ["response"]},
+                {"properties": {"transform": {"required": ["response"]}}, "required": ["transform"]},
+                {"properties": {"units": {"required": ["response"]}}, "required": ["units"]}
+            ]}},
+            "responses": {"minItems": 1},
+            "limits": {"not": {"anyOf": [{"required": ["lower"]}, {"required": ["upper"]}]}}
+        }
+    }
+]))]
 pub(super) struct RawPlan {
     /// Title of the report. Required; must not be blank.
     #[schemars(with = "String", extend("pattern" = "\\S", "examples" = ["Seedling dry mass by nursery bed, 2026"]))]
@@ -51,9 +72,50 @@ pub(super) struct RawPlan {
     /// What to write and where.
     #[schemars(with = "Option<RawReport>")]
     pub report: Option<Spanned<RawReport>>,
+    /// Several attributes of one study (e.g. assay, a degradant, dissolution), each
+    /// analysed on its own with the plan's covariate, groups and tests, in one
+    /// report: with them, `model.response` and the response's transform and unit
+    /// move into each entry, and `[limits]` keeps the shared settings while each
+    /// entry gives its own lower and upper limit. The earliest supported period
+    /// among them is the plan's answer.
+    #[serde(default)]
+    #[schemars(with = "Vec<RawResponse>", extend("examples" = [[{"column": "assay_pct", "units": "% of label claim", "limits": {"lower": 95.0, "upper": 105.0}}, {"column": "impurity_pct", "limits": {"upper": 0.5}}]]))]
+    pub responses: Vec<Spanned<RawResponse>>,
 }
 
-#[derive(Debug, Deserialize, JsonSchema)]
+/// One attribute under `[[responses]]`.
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub(super) struct RawResponse {
+    /// The response column of this attribute.
+    #[schemars(with = "String", extend("pattern" = "\\S", "examples" = ["assay_pct"]))]
+    pub column: Spanned<String>,
+    /// Its transform: "none", "log", "log10" or "sqrt".
+    #[schemars(with = "Option<Transform>", extend("default" = "none", "examples" = ["log"]))]
+    pub transform: Option<Spanned<Transform>>,
+    /// Its unit as measured, for axis titles and tables.
+    #[schemars(extend("examples" = ["% of label claim"]))]
+    pub units: Option<String>,
+    /// Its limits, on the measured scale; the other limit settings come from
+    /// `[limits]`.
+    #[schemars(with = "Option<RawResponseLimits>")]
+    pub limits: Option<Spanned<RawResponseLimits>>,
+}
+
+/// An attribute's own limits.
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+#[schemars(extend("examples" = [{"lower": 95.0, "upper": 105.0}], "anyOf" = [{"required": ["lower"]}, {"required": ["upper"]}]))]
+pub(super) struct RawResponseLimits {
+    /// The attribute's mean must stay at or above this value.
+    #[schemars(with = "Option<f64>", extend("examples" = [95.0]))]
+    pub lower: Option<Spanned<f64>>,
+    /// The attribute's mean must stay at or below this value.
+    #[schemars(with = "Option<f64>", extend("examples" = [105.0]))]
+    pub upper: Option<Spanned<f64>>,
+}
+
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub(super) struct RawData {
     /// CSV file with a header row, relative to the plan's folder. Required.
@@ -78,7 +140,7 @@ pub(super) struct RawData {
 }
 
 /// One row filter: keep the rows whose `column` holds an accepted text.
-#[derive(Debug, Deserialize, JsonSchema)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 #[schemars(extend("oneOf" = [{"required": ["equals"]}, {"required": ["one_of"]}]))]
 pub(super) struct RawKeep {
@@ -94,12 +156,13 @@ pub(super) struct RawKeep {
     pub one_of: Option<Spanned<Vec<String>>>,
 }
 
-#[derive(Debug, Deserialize, JsonSchema)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub(super) struct RawModel {
-    /// Numeric column: the y of each group's line. Required.
-    #[schemars(with = "String", extend("pattern" = "\\S", "examples" = ["dry_mass_g"]))]
-    pub response: Spanned<String>,
+    /// Numeric column: the y of each group's line. Required, unless the plan lists
+    /// its attributes under [[responses]] instead.
+    #[schemars(with = "Option<String>", extend("pattern" = "\\S", "examples" = ["dry_mass_g"]))]
+    pub response: Option<Spanned<String>>,
     /// Numeric column: the x of each group's line. Required; not the response.
     #[schemars(with = "String", extend("pattern" = "\\S", "examples" = ["height_cm"]))]
     pub covariate: Spanned<String>,
@@ -125,7 +188,7 @@ pub(super) struct RawModel {
     pub units: Option<RawUnits>,
 }
 
-#[derive(Debug, Deserialize, JsonSchema)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 #[schemars(extend("examples" = [{"response": "g", "covariate": "cm"}]))]
 pub(super) struct RawUnits {
@@ -137,7 +200,7 @@ pub(super) struct RawUnits {
     pub covariate: Option<String>,
 }
 
-#[derive(Debug, Deserialize, JsonSchema)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 #[schemars(extend("examples" = [{"response": "none", "covariate": "log"}]))]
 pub(super) struct RawTransform {
@@ -149,7 +212,7 @@ pub(super) struct RawTransform {
     pub covariate: Option<Spanned<Transform>>,
 }
 
-#[derive(Debug, Deserialize, JsonSchema)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 #[schemars(extend(
     "allOf" = [
@@ -282,10 +345,9 @@ impl Covariance {
     }
 }
 
-#[derive(Debug, Deserialize, JsonSchema)]
+#[derive(Debug, Clone, Default, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 #[schemars(extend(
-    "anyOf" = [{"required": ["lower"]}, {"required": ["upper"]}],
     "allOf" = [
         {"not": {"required": ["storage", "extrapolation_factor"]}},
         {"not": {"required": ["storage", "max_beyond"]}}
@@ -378,7 +440,7 @@ pub enum Procedure {
     LotPooling,
 }
 
-#[derive(Debug, Deserialize, JsonSchema)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub(super) struct RawChecks {
     /// The refit without the rows that matter (Cook's distance above the median of
@@ -389,7 +451,7 @@ pub(super) struct RawChecks {
     pub sensitivity: Option<bool>,
 }
 
-#[derive(Debug, Deserialize, JsonSchema)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub(super) struct RawReport {
     /// Outputs to write, each once: "markdown" (report.md), "json" (results.json),

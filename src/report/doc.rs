@@ -69,9 +69,10 @@ pub struct Figure {
 /// One block of the document, in reading order.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Block {
-    /// Level 1 is a section, 2 a subsection (the title sits above both).
+    /// Level 1 is a section, 2 a subsection (the title sits above both); a report
+    /// of several attributes nests each attribute's report one level down, to 3.
     Heading {
-        /// 1 or 2.
+        /// 1, 2 or 3.
         level: u8,
         /// The heading's text.
         text: Runs,

@@ -14,6 +14,7 @@ pub mod fonts;
 pub mod pdf;
 pub mod seasons;
 pub mod sections;
+pub mod study;
 pub mod write;
 
 pub use error::ReportError;

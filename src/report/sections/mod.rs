@@ -334,7 +334,7 @@ pub(crate) fn lead(label: &str, mut rest: Runs) -> Runs {
 /// The words for the bound the crossings are read from: "one-sided 95% confidence
 /// bound of the mean", or for the simultaneous band "95% simultaneous
 /// (Working–Hotelling) confidence band of the mean".
-pub(super) fn bound_phrase(bound: &str, band: &str, confidence: f64) -> String {
+pub(crate) fn bound_phrase(bound: &str, band: &str, confidence: f64) -> String {
     let level = crate::number::trimmed(100.0 * confidence, 4);
     match (bound, band) {
         ("prediction", _) => {

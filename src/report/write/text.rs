@@ -78,9 +78,15 @@ pub fn write(doc: &Document) -> String {
     }
     for b in &doc.blocks {
         match b {
-            Block::Heading { level, text } => {
-                heading(&mut out, &runs(text), if *level == 1 { '-' } else { '~' })
-            }
+            Block::Heading { level, text } => heading(
+                &mut out,
+                &runs(text),
+                match level {
+                    1 => '-',
+                    2 => '~',
+                    _ => '.',
+                },
+            ),
             Block::Paragraph(rs) => {
                 out.push_str(&runs(rs));
                 out.push('\n');
