@@ -9,9 +9,7 @@
 //! §18.3). The group effect is the extra-sum-of-squares F of one line against
 //! parallel lines.
 
-use super::pairwise::{
-    adjust_pairs, covariance, many_to_one, pair_indices, simultaneous_interval, tukey_kramer,
-};
+use super::pairwise::{adjust_pairs, covariance, fill_many_to_one, pair_indices, tukey_kramer};
 use super::{interval, ratio};
 use crate::fit::{CommonSlopeFit, Moments, OneLineFit};
 use crate::plan::Comparisons;
@@ -149,12 +147,7 @@ pub(super) fn pairwise_adjusted(
                 s2 * (own + 1.0 / reference.n as f64 + di * dj / fit.sxx_within)
             })
         });
-        let t: Vec<Option<f64>> = pairs.iter().map(|p| p.t).collect();
-        let (p, family) = many_to_one(&t, cov, fit.df, alpha);
-        for (pair, p) in pairs.iter_mut().zip(p) {
-            pair.p_adjusted = p;
-            pair.ci_simultaneous = simultaneous_interval(pair.difference, pair.se, &family);
-        }
+        let family = fill_many_to_one(&mut pairs, cov, fit.df, alpha);
         return (pairs, Some(family));
     }
     adjust_pairs(

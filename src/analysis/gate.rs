@@ -9,7 +9,7 @@
 //! 1946), for groups whose residual spreads differ.
 
 use super::pairwise::{
-    adjust_pairs, covariance, many_to_one, pair_indices, simultaneous_interval, tukey_kramer, welch,
+    adjust_pairs, covariance, fill_many_to_one, pair_indices, tukey_kramer, welch,
 };
 use super::{interval, ratio};
 use crate::fit::{CommonSlopeFit, SeparateFit};
@@ -146,12 +146,7 @@ pub(super) fn pairwise_slopes(
                 s2 * (own + 1.0 / reference)
             })
         });
-        let t: Vec<Option<f64>> = pairs.iter().map(|p| p.t).collect();
-        let (p, family) = many_to_one(&t, cov, fit.df, alpha);
-        for (pair, p) in pairs.iter_mut().zip(p) {
-            pair.p_adjusted = p;
-            pair.ci_simultaneous = simultaneous_interval(pair.difference, pair.se, &family);
-        }
+        let family = fill_many_to_one(&mut pairs, cov, fit.df, alpha);
         return (pairs, Some(family));
     }
     let k = fit.lines.len();

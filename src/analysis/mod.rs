@@ -25,6 +25,7 @@ pub mod influence;
 mod limits;
 mod pairwise;
 mod planning;
+mod pooling;
 mod regions;
 mod robust;
 mod scale;
@@ -525,7 +526,7 @@ fn procedure(
         )
     };
 
-    let (pooling, stopped) = match limits::pooling(
+    let (pooling, stopped) = match pooling::pooling(
         plan,
         equal_slopes.p_value,
         group_effect.p_value,

@@ -70,7 +70,7 @@ pub const MAX_MANY_TO_ONE_GROUPS: usize = 10;
 /// positive scale: only its correlation enters), `df` their common df. Every p is
 /// None when a statistic or the covariance is unknown, or the correlation cannot be
 /// factored.
-pub(super) fn many_to_one(
+fn many_to_one(
     t: &[Option<f64>],
     cov: Option<Vec<Vec<f64>>>,
     df: f64,
@@ -145,14 +145,51 @@ pub(super) fn covariance(
         .collect()
 }
 
-/// d ± c·se, the simultaneous interval of one pair.
-pub(super) fn simultaneous_interval(
-    difference: f64,
-    se: Option<f64>,
-    family: &SimultaneousFamily,
-) -> Option<[f64; 2]> {
-    let (se, c) = (se?, family.critical_value?);
-    Some([difference - c * se, difference + c * se])
+/// A pair that can carry a many-to-one family's p-value and interval.
+pub(super) trait SimultaneousPair {
+    /// Its t statistic, difference and standard error.
+    fn estimate(&self) -> (Option<f64>, f64, Option<f64>);
+    /// Records its simultaneous p-value and interval.
+    fn set_simultaneous(&mut self, p: Option<f64>, ci: Option<[f64; 2]>);
+}
+
+macro_rules! simultaneous_pair {
+    ($($t:ty),*) => {$(
+        impl SimultaneousPair for $t {
+            fn estimate(&self) -> (Option<f64>, f64, Option<f64>) {
+                (self.t, self.difference, self.se)
+            }
+            fn set_simultaneous(&mut self, p: Option<f64>, ci: Option<[f64; 2]>) {
+                self.p_adjusted = p;
+                self.ci_simultaneous = ci;
+            }
+        }
+    )*};
+}
+simultaneous_pair!(
+    crate::results::MeanPair,
+    crate::results::SlopePair,
+    crate::results::RobustDifference
+);
+
+/// The many-to-one family of `pairs` (see [`many_to_one`]), written into each pair:
+/// its simultaneous p-value and its interval d ± c·se.
+pub(super) fn fill_many_to_one(
+    pairs: &mut [impl SimultaneousPair],
+    cov: Option<Vec<Vec<f64>>>,
+    df: f64,
+    alpha: f64,
+) -> SimultaneousFamily {
+    let t: Vec<Option<f64>> = pairs.iter().map(|p| p.estimate().0).collect();
+    let (p, family) = many_to_one(&t, cov, df, alpha);
+    for (pair, p) in pairs.iter_mut().zip(p) {
+        let (_, d, se) = pair.estimate();
+        let ci = se
+            .zip(family.critical_value)
+            .map(|(se, c)| [d - c * se, d + c * se]);
+        pair.set_simultaneous(p, ci);
+    }
+    family
 }
 
 /// Fills each pair's adjusted p-value: Tukey–Kramer from its t when `method` asks for

@@ -19,7 +19,7 @@
 //! separate lines, 1/n_g + (x − x̄_g)²/Σ Sxx for parallel lines.
 
 use super::interval;
-use super::pairwise::{adjust_pairs, covariance, many_to_one, pair_indices, simultaneous_interval};
+use super::pairwise::{adjust_pairs, covariance, fill_many_to_one, pair_indices};
 use crate::data::GroupData;
 use crate::fit::{CommonSlopeFit, SeparateFit};
 use crate::plan::{Comparisons, Covariance};
@@ -266,13 +266,7 @@ fn adjust(
     alpha: f64,
 ) -> Option<SimultaneousFamily> {
     if method == Comparisons::AgainstReference {
-        let t: Vec<Option<f64>> = pairs.iter().map(|p| p.t).collect();
-        let (p, family) = many_to_one(&t, cov, df, alpha);
-        for (pair, p) in pairs.iter_mut().zip(p) {
-            pair.p_adjusted = p;
-            pair.ci_simultaneous = simultaneous_interval(pair.difference, pair.se, &family);
-        }
-        return Some(family);
+        return Some(fill_many_to_one(pairs, cov, df, alpha));
     }
     let method = match method {
         Comparisons::TukeyKramer => Comparisons::Holm,

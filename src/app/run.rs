@@ -127,9 +127,39 @@ pub(super) fn render_all(
     }
 }
 
-/// The figures of one analysis, or the results with a warning when they cannot be
-/// drawn (a figure never costs the user the report).
+/// The figures of one analysis, placed in `files` (under `figures/<folder>/` when a
+/// folder is given) and listed for the report, with the results carrying a warning
+/// when they cannot be drawn (a figure never costs the user the report). None are
+/// drawn when no format shows them.
 fn draw(
+    a: &Analysed,
+    formats: &[Format],
+    folder: Option<&str>,
+    files: &mut Vec<(String, Vec<u8>)>,
+) -> (Vec<report::FigureRef>, Option<crate::results::Results>) {
+    if !formats.contains(&Format::Markdown) && !formats.contains(&Format::Pdf) {
+        return (Vec::new(), None);
+    }
+    let (figures, with_warning) = drawn(a);
+    let mut refs = Vec::new();
+    for fig in figures {
+        let file = match folder {
+            Some(f) => fig.file.replacen("figures/", &format!("figures/{f}/"), 1),
+            None => fig.file.clone(),
+        };
+        refs.push(report::FigureRef {
+            file: file.clone(),
+            title: fig.title.clone(),
+            caption: fig.caption.clone(),
+            width: fig.width,
+        });
+        files.push((file, fig.svg.into_bytes()));
+    }
+    (refs, with_warning)
+}
+
+/// The figures, or none and the results with a warning saying why.
+fn drawn(
     a: &Analysed,
 ) -> (
     Vec<report::figures::Figure>,
@@ -180,111 +210,71 @@ fn render_study(
     analysed: &[Analysed],
 ) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
     let formats = &lp.plan.report.formats;
-    let wants = |f: Format| formats.contains(&f);
     let mut files = vec![(audit::PLAN_COPY.to_string(), lp.bytes.clone())];
     let mut taken = Vec::new();
     let mut attributes = Vec::new();
     let mut figure_refs = Vec::new();
     for a in analysed {
         let column = a.results.model.response.clone();
-        let (drawn, with_warning) = if wants(Format::Markdown) || wants(Format::Pdf) {
-            draw(a)
-        } else {
-            (Vec::new(), None)
-        };
         let folder = figure_folder(&column, &taken);
-        let mut refs = Vec::new();
-        for fig in drawn {
-            let file = fig
-                .file
-                .replacen("figures/", &format!("figures/{folder}/"), 1);
-            refs.push(report::FigureRef {
-                file: file.clone(),
-                title: fig.title.clone(),
-                caption: fig.caption.clone(),
-                width: fig.width,
-            });
-            files.push((file, fig.svg.into_bytes()));
-        }
+        let (refs, with_warning) = draw(a, formats, Some(&folder), &mut files);
         taken.push(folder);
         figure_refs.push(refs);
         attributes.push((column, with_warning.unwrap_or_else(|| a.results.clone())));
     }
     let study = analysis::study(&lp.plan.title, attributes);
-    let rendered = |r: Result<String, report::ReportError>| {
-        r.map(String::into_bytes).map_err(|e| e.diagnostic())
-    };
-    if wants(Format::Json) {
-        files.push((
-            "results.json".to_string(),
-            rendered(report::study::json(&study))?,
-        ));
-    }
-    if wants(Format::Markdown) {
-        files.push((
-            "report.md".to_string(),
-            report::study::markdown(&study, &figure_refs).into_bytes(),
-        ));
-    }
-    if wants(Format::Pdf) {
-        files.push((
-            "report.typ".to_string(),
-            report::pdf::TEMPLATE.as_bytes().to_vec(),
-        ));
-        files.push((
-            "report-data.json".to_string(),
-            rendered(report::study::pdf_data(&study, &figure_refs))?,
-        ));
-    }
+    push_outputs(
+        &mut files,
+        formats,
+        || report::study::json(&study),
+        || Ok(report::study::markdown(&study, &figure_refs)),
+        || report::study::pdf_data(&study, &figure_refs),
+    )?;
     Ok(files)
 }
 
 /// Renders every output of a single-response plan, plus the plan copy.
 fn render(lp: &LoadedPlan, a: &Analysed) -> Result<Vec<(String, Vec<u8>)>, Diagnostic> {
     let formats = &lp.plan.report.formats;
-    let wants = |f: Format| formats.contains(&f);
     let mut files = vec![(audit::PLAN_COPY.to_string(), lp.bytes.clone())];
-    let mut figure_refs = Vec::new();
-    let (figures, with_warning) = if wants(Format::Markdown) || wants(Format::Pdf) {
-        draw(a)
-    } else {
-        (Vec::new(), None)
-    };
+    let (figure_refs, with_warning) = draw(a, formats, None, &mut files);
     let results = with_warning.as_ref().unwrap_or(&a.results);
-    {
-        for fig in figures {
-            figure_refs.push(report::FigureRef {
-                file: fig.file.clone(),
-                title: fig.title.clone(),
-                caption: fig.caption.clone(),
-                width: fig.width,
-            });
-            files.push((fig.file, fig.svg.into_bytes()));
-        }
-    }
+    push_outputs(
+        &mut files,
+        formats,
+        || report::json(results),
+        || report::markdown(results, &figure_refs),
+        || report::pdf::data(results, &figure_refs),
+    )?;
+    Ok(files)
+}
+
+/// Adds the outputs the plan's formats ask for, each rendered only when asked:
+/// `results.json`, `report.md`, and the PDF's template and data.
+fn push_outputs(
+    files: &mut Vec<(String, Vec<u8>)>,
+    formats: &[Format],
+    json: impl FnOnce() -> Result<String, report::ReportError>,
+    markdown: impl FnOnce() -> Result<String, report::ReportError>,
+    pdf_data: impl FnOnce() -> Result<String, report::ReportError>,
+) -> Result<(), Diagnostic> {
     let rendered = |r: Result<String, report::ReportError>| {
         r.map(String::into_bytes).map_err(|e| e.diagnostic())
     };
-    if wants(Format::Json) {
-        files.push(("results.json".to_string(), rendered(report::json(results))?));
+    if formats.contains(&Format::Json) {
+        files.push(("results.json".to_string(), rendered(json())?));
     }
-    if wants(Format::Markdown) {
-        files.push((
-            "report.md".to_string(),
-            rendered(report::markdown(results, &figure_refs))?,
-        ));
+    if formats.contains(&Format::Markdown) {
+        files.push(("report.md".to_string(), rendered(markdown())?));
     }
-    if wants(Format::Pdf) {
+    if formats.contains(&Format::Pdf) {
         files.push((
             "report.typ".to_string(),
             report::pdf::TEMPLATE.as_bytes().to_vec(),
         ));
-        files.push((
-            "report-data.json".to_string(),
-            rendered(report::pdf::data(results, &figure_refs))?,
-        ));
+        files.push(("report-data.json".to_string(), rendered(pdf_data())?));
     }
-    Ok(files)
+    Ok(())
 }
 
 /// Writes the run folder: outputs, then the PDF (if asked) and the manifest, in the

@@ -7,6 +7,8 @@
 //! line that named it. Nothing here reads data or touches the file system.
 
 mod error;
+mod margins;
+mod responses;
 mod schema;
 
 pub use error::PlanError;
@@ -280,99 +282,8 @@ pub fn load(file: &str, source: &str) -> Result<Plan, PlanError> {
     if raw.responses.is_empty() {
         from_raw(file, source, &raw)
     } else {
-        several(file, source, raw)
+        responses::several(file, source, raw)
     }
-}
-
-/// A plan with `[[responses]]`: each attribute becomes a whole single-response plan,
-/// validated exactly as if it had been written out with its column as
-/// `model.response`, its transform and unit under `[model]`, and its limits merged
-/// into the shared `[limits]`, so every check and every span of the single-response
-/// plan applies to it. The plan returned is the first attribute's, with all of them
-/// in [`Plan::attributes`].
-fn several(file: &str, source: &str, raw: schema::RawPlan) -> Result<Plan, PlanError> {
-    let err = |span: Range<usize>, message: String, help: &str| {
-        PlanError::new(file, source, span, message, help)
-    };
-    let model = raw.model.get_ref();
-    if let Some(r) = &model.response {
-        return Err(err(
-            r.span(),
-            "model.response is given beside [[responses]]".into(),
-            "list every attribute under [[responses]] (column, transform, units, limits), or remove [[responses]] for a single response",
-        ));
-    }
-    if model
-        .transform
-        .as_ref()
-        .is_some_and(|t| t.response.is_some())
-        || model.units.as_ref().is_some_and(|u| u.response.is_some())
-    {
-        return Err(err(
-            raw.model.span(),
-            "[model] sets the response's transform or unit beside [[responses]]".into(),
-            "give each attribute its own `transform` and `units` under [[responses]]",
-        ));
-    }
-    if let Some(v) = raw.limits.as_ref().and_then(|l| {
-        let l = l.get_ref();
-        l.lower.as_ref().or(l.upper.as_ref())
-    }) {
-        return Err(err(
-            v.span(),
-            "[limits] gives a lower or upper limit beside [[responses]]".into(),
-            "give each attribute its limits under its own `limits` table; [limits] keeps the shared settings (confidence, bound, band, storage, round_to)",
-        ));
-    }
-
-    let mut seen: Vec<&str> = Vec::new();
-    for r in &raw.responses {
-        let column = r.get_ref().column.get_ref().as_str();
-        if seen.contains(&column) {
-            return Err(err(
-                r.get_ref().column.span(),
-                format!("[[responses]] lists the column `{column}` twice"),
-                "list each attribute once",
-            ));
-        }
-        seen.push(column);
-    }
-    let mut attributes = Vec::new();
-    for r in &raw.responses {
-        let r = r.get_ref();
-        let mut one = raw.clone();
-        one.responses = Vec::new();
-        let span = one.model.span();
-        let mut m = one.model.get_ref().clone();
-        m.response = Some(r.column.clone());
-        let mut transform = m.transform.take().unwrap_or(schema::RawTransform {
-            response: None,
-            covariate: None,
-        });
-        transform.response = r.transform.clone();
-        m.transform = Some(transform);
-        let mut units = m.units.take().unwrap_or(schema::RawUnits {
-            response: None,
-            covariate: None,
-        });
-        units.response = r.units.clone();
-        m.units = Some(units);
-        one.model = Spanned::new(span, m);
-        one.limits = r.limits.as_ref().map(|own| {
-            let mut shared = raw
-                .limits
-                .as_ref()
-                .map(|l| l.get_ref().clone())
-                .unwrap_or_default();
-            shared.lower = own.get_ref().lower.clone();
-            shared.upper = own.get_ref().upper.clone();
-            Spanned::new(own.span(), shared)
-        });
-        attributes.push(from_raw(file, source, &one)?);
-    }
-    let mut plan = attributes[0].clone();
-    plan.attributes = attributes;
-    Ok(plan)
 }
 
 /// Validates one parsed plan with a single response.
@@ -616,13 +527,17 @@ fn from_raw(file: &str, source: &str, raw: &schema::RawPlan) -> Result<Plan, Pla
                     .covariance
                     .as_ref()
                     .map_or(Covariance::Classical, |c| *c.get_ref()),
-                slope_margin: slope_margin(t, &(response_transform, covariate_transform), &err)?,
-                gate: gate_rule(t, &err)?,
+                slope_margin: margins::slope_margin(
+                    t,
+                    &(response_transform, covariate_transform),
+                    &err,
+                )?,
+                gate: margins::gate_rule(t, &err)?,
                 pooling_rule: t
                     .pooling_rule
                     .as_ref()
                     .map_or(GateRule::Difference, |r| *r.get_ref()),
-                pooling_margins: pooling_margins(
+                pooling_margins: margins::pooling_margins(
                     t,
                     &(response_transform, covariate_transform),
                     &err,
@@ -912,132 +827,6 @@ fn nonempty(
         ));
     }
     Ok(value.get_ref().clone())
-}
-
-/// `tests.slope_margin`: finite and positive, on the measured scale, so both columns
-/// must be untransformed (a margin in measured units has no fixed size on a log
-/// scale).
-fn slope_margin(
-    t: &schema::RawTests,
-    transforms: &(Transform, Transform),
-    err: &impl Fn(Range<usize>, String, &str) -> PlanError,
-) -> Result<Option<f64>, PlanError> {
-    let Some(m) = &t.slope_margin else {
-        return Ok(None);
-    };
-    let v = *m.get_ref();
-    if !(v.is_finite() && v > 0.0) {
-        return Err(err(
-            m.span(),
-            format!("tests.slope_margin must be a positive number, found {v}"),
-            "give the largest slope difference that does not matter, in response units per covariate unit, such as 0.05",
-        ));
-    }
-    if transforms.0 != Transform::None || transforms.1 != Transform::None {
-        return Err(err(
-            m.span(),
-            "tests.slope_margin is on the measured scale, but the plan transforms the response or the covariate, so a slope has no size in measured units".into(),
-            "remove the transform, or remove slope_margin (equivalence on a transformed scale is not offered)",
-        ));
-    }
-    Ok(Some(v))
-}
-
-/// `tests.pooling_rule` and its margins: "equivalence" needs lot pooling and both
-/// margins, each finite, positive and on the measured scale; a margin without the
-/// equivalence rule would be ignored, so it is an error instead.
-fn pooling_margins(
-    t: &schema::RawTests,
-    transforms: &(Transform, Transform),
-    err: &impl Fn(Range<usize>, String, &str) -> PlanError,
-) -> Result<Option<PoolingMargins>, PlanError> {
-    let equivalence = t
-        .pooling_rule
-        .as_ref()
-        .filter(|r| *r.get_ref() == GateRule::Equivalence);
-    let keys = [
-        (
-            "pooling_slope_margin",
-            &t.pooling_slope_margin,
-            "response units per covariate unit, such as 0.05",
-        ),
-        (
-            "pooling_intercept_margin",
-            &t.pooling_intercept_margin,
-            "response units, such as 1.0",
-        ),
-    ];
-    let Some(rule) = equivalence else {
-        for (key, value, _) in keys {
-            if let Some(v) = value {
-                return Err(err(
-                    v.span(),
-                    format!("tests.{key} is used only with pooling_rule = \"equivalence\""),
-                    "add `pooling_rule = \"equivalence\"` under [tests], or remove the margin",
-                ));
-            }
-        }
-        return Ok(None);
-    };
-    if t.procedure.as_ref().map(|p| *p.get_ref()) != Some(Procedure::LotPooling) {
-        return Err(err(
-            rule.span(),
-            "tests.pooling_rule = \"equivalence\" needs procedure = \"lot-pooling\"".into(),
-            "add `procedure = \"lot-pooling\"` under [tests], or remove pooling_rule",
-        ));
-    }
-    let mut margins = [0.0; 2];
-    for (slot, (key, value, unit)) in margins.iter_mut().zip(keys) {
-        let Some(m) = value else {
-            return Err(err(
-                rule.span(),
-                format!("tests.pooling_rule = \"equivalence\" needs tests.{key}"),
-                &format!(
-                    "add `{key}` under [tests]: the largest difference between lots that does not matter, in {unit}"
-                ),
-            ));
-        };
-        let v = *m.get_ref();
-        if !(v.is_finite() && v > 0.0) {
-            return Err(err(
-                m.span(),
-                format!("tests.{key} must be a positive number, found {v}"),
-                &format!(
-                    "give the largest difference between lots that does not matter, in {unit}"
-                ),
-            ));
-        }
-        if transforms.0 != Transform::None || transforms.1 != Transform::None {
-            return Err(err(
-                m.span(),
-                format!(
-                    "tests.{key} is on the measured scale, but the plan transforms the response or the covariate, so the margin has no fixed size there"
-                ),
-                "remove the transform, or use pooling_rule = \"difference\"",
-            ));
-        }
-        *slot = v;
-    }
-    Ok(Some(PoolingMargins {
-        slope: margins[0],
-        intercept: margins[1],
-    }))
-}
-
-/// `tests.gate`: "equivalence" needs a margin.
-fn gate_rule(
-    t: &schema::RawTests,
-    err: &impl Fn(Range<usize>, String, &str) -> PlanError,
-) -> Result<GateRule, PlanError> {
-    match &t.gate {
-        None => Ok(GateRule::Difference),
-        Some(g) if *g.get_ref() == GateRule::Equivalence && t.slope_margin.is_none() => Err(err(
-            g.span(),
-            "tests.gate = \"equivalence\" needs tests.slope_margin".into(),
-            "add `slope_margin = 0.05` (the largest slope difference that does not matter) under [tests], or use gate = \"difference\"",
-        )),
-        Some(g) => Ok(*g.get_ref()),
-    }
 }
 
 fn level(

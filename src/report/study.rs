@@ -4,7 +4,7 @@
 //! this one document, as for a single response.
 
 use super::FigureRef;
-use super::doc::{Block, Document, Inline, Runs, t, v};
+use super::doc::{Block, Document, Runs, t, v};
 use super::sections::{cell, vcell};
 use crate::number::sig;
 use crate::results::Study;
@@ -63,27 +63,12 @@ pub fn document(study: &Study, figures: &[Vec<FigureRef>]) -> Document {
         v(&first.model.covariate),
         t(", each compared across the groups of "),
         v(&first.model.group),
-        t(format!(
-            ". Written by slopewise {} from the plan ",
-            pv.tool_version
-        )),
-        v(&pv.plan_file),
-        t(
-            ". Approval: not approved unless a record in the approvals folder beside this report says so and ",
-        ),
-        Inline::Code("slopewise verify".into()),
-        t(" finds it holds; approving never edits this report."),
     ]);
+    subtitle.extend(super::sections::written_by(pv));
     let mut doc = Document {
         title: study.title.clone(),
         subtitle,
-        footer: format!(
-            "slopewise {} · plan {} · plan SHA-256 {} · data SHA-256 {}",
-            pv.tool_version,
-            super::doc::visible(&pv.plan_file),
-            pv.plan_sha256.chars().take(12).collect::<String>(),
-            pv.data_sha256.chars().take(12).collect::<String>()
-        ),
+        footer: super::sections::footer(pv),
         blocks,
     };
     doc.resolve_references();

@@ -64,28 +64,43 @@ pub fn report(r: &Results, figs: &[FigureRef]) -> Document {
                 r.groups.len()
             )),
             v(&c.g),
-            t(format!(
-                ". Written by slopewise {} from the plan ",
-                pv.tool_version
-            )),
-            v(&pv.plan_file),
-            t(
-                ". Approval: not approved unless a record in the approvals folder beside this report says so and ",
-            ),
-            Inline::Code("slopewise verify".into()),
-            t(" finds it holds; approving never edits this report."),
-        ],
-        footer: format!(
-            "slopewise {} · plan {} · plan SHA-256 {} · data SHA-256 {}",
-            pv.tool_version,
-            super::doc::visible(&pv.plan_file),
-            short(&pv.plan_sha256),
-            short(&pv.data_sha256)
-        ),
+        ]
+        .into_iter()
+        .chain(written_by(pv))
+        .collect(),
+        footer: footer(pv),
         blocks: b.blocks,
     };
     doc.resolve_references();
     doc
+}
+
+/// The subtitle's second sentence: who wrote the report from which plan, and what
+/// approval means for it.
+pub(crate) fn written_by(pv: &crate::results::Provenance) -> Runs {
+    vec![
+        t(format!(
+            ". Written by slopewise {} from the plan ",
+            pv.tool_version
+        )),
+        v(&pv.plan_file),
+        t(
+            ". Approval: not approved unless a record in the approvals folder beside this report says so and ",
+        ),
+        Inline::Code("slopewise verify".into()),
+        t(" finds it holds; approving never edits this report."),
+    ]
+}
+
+/// The PDF's page footer: version, plan and both hashes.
+pub(crate) fn footer(pv: &crate::results::Provenance) -> String {
+    format!(
+        "slopewise {} · plan {} · plan SHA-256 {} · data SHA-256 {}",
+        pv.tool_version,
+        super::doc::visible(&pv.plan_file),
+        short(&pv.plan_sha256),
+        short(&pv.data_sha256)
+    )
 }
 
 fn short(hash: &str) -> &str {
