@@ -1261,3 +1261,145 @@ fn an_attribute_whose_column_is_absent_points_at_its_entry() {
         .stderr_has(&["widht_cm", "width_cm", "--> plan.toml:11:10"])
         .run();
 }
+
+// ---- spreadsheets ----------------------------------------------------------------
+
+/// The spreadsheet fixtures (tests/reference/generate_sheets.py: invented demo data).
+fn sheet_fixture(file: &str) -> Vec<u8> {
+    std::fs::read(
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("tests/reference/data")
+            .join(file),
+    )
+    .unwrap()
+}
+
+/// A plan reading `file`, its `[data]` keys from line 4 on.
+fn sheet_plan(file: &str, keys: &str) -> String {
+    format!(
+        "title = \"Spreadsheet (invented demo data)\"\n[data]\npath = \"{file}\"\n{keys}\n[model]\nresponse = \"assay_pct\"\ncovariate = \"months\"\ngroup = \"lot\"\n[report]\nout = \"out\"\n"
+    )
+}
+
+#[test]
+fn spreadsheet_problems_name_the_sheet_or_the_cell() {
+    let cases: [(&str, &str, &str, &[&str]); 9] = [
+        (
+            "sheet_missing",
+            "stability_sheets.xlsx",
+            "sheet = \"assay\"\nheader_row = 3",
+            &[
+                "error: the workbook has no sheet `assay`",
+                "--> plan.toml:4:9",
+                "sheets in the workbook: assays, blank, text, formula, merged",
+            ],
+        ),
+        (
+            "sheet_empty",
+            "stability_sheets.xlsx",
+            "sheet = \"blank\"",
+            &[
+                "sheet `blank` holds no rows from its header row down",
+                "--> plan.toml:4:9",
+            ],
+        ),
+        (
+            "sheet_header_below_the_data",
+            "stability_sheets.ods",
+            "sheet = \"assays\"\nheader_row = 900",
+            &["sheet `assays` holds no rows from its header row down"],
+        ),
+        (
+            "sheet_text_cell_xlsx",
+            "stability_sheets.xlsx",
+            "sheet = \"text\"\nheader_row = 3",
+            &[
+                "cell D7 of sheet `text` (data row 4, column `assay_pct`) holds `n.d.`, which is not a number",
+            ],
+        ),
+        (
+            "sheet_text_cell_ods",
+            "stability_sheets.ods",
+            "sheet = \"text\"\nheader_row = 3",
+            &[
+                "cell D7 of sheet `text` (data row 4, column `assay_pct`) holds `n.d.`, which is not a number",
+            ],
+        ),
+        (
+            "sheet_formula",
+            "stability_sheets.xlsx",
+            "sheet = \"formula\"\nheader_row = 3",
+            &[
+                "cell D5 of sheet `formula` holds the formula `D4-0.1` but no saved value",
+                "save it again, so every formula's value is stored",
+            ],
+        ),
+        (
+            "sheet_merged_xlsx",
+            "stability_sheets.xlsx",
+            "sheet = \"merged\"\nheader_row = 3",
+            &[
+                "sheet `merged` has merged cells (A5:A6)",
+                "unmerge the cells",
+            ],
+        ),
+        (
+            "sheet_merged_ods",
+            "stability_sheets.ods",
+            "sheet = \"merged\"\nheader_row = 3",
+            &["sheet `merged` has merged cells"],
+        ),
+        (
+            "sheet_header_row_zero",
+            "stability_sheets.xlsx",
+            "header_row = 0",
+            &[
+                "data.header_row must be a row number of 1 or more, found 0",
+                "--> plan.toml:4:14",
+            ],
+        ),
+    ];
+    for (name, file, keys, fragments) in cases {
+        Test::new(name)
+            .plan(&sheet_plan(file, keys))
+            .file(file, sheet_fixture(file))
+            .fails()
+            .stderr_has(fragments)
+            .run();
+    }
+}
+
+#[test]
+fn spreadsheet_keys_and_csv_keys_stay_with_their_files() {
+    let cases: [(&str, &str, &str, &str, &str); 3] = [
+        (
+            "sheet_key_on_csv",
+            "data.csv",
+            "sheet = \"assays\"",
+            "data.sheet applies to spreadsheets, but data.path names a CSV file",
+            "--> plan.toml:4:9",
+        ),
+        (
+            "delimiter_on_sheet",
+            "stability_sheets.xlsx",
+            "delimiter = \";\"",
+            "data.delimiter applies to CSV files, but data.path names a spreadsheet",
+            "--> plan.toml:4:13",
+        ),
+        (
+            "csv_named_xlsx",
+            "fake.xlsx",
+            "",
+            "the data file is a spreadsheet, but it cannot be read as an Office Open XML workbook (.xlsx)",
+            "--> fake.xlsx",
+        ),
+    ];
+    for (name, file, keys, message, at) in cases {
+        Test::new(name)
+            .plan(&sheet_plan(file, keys))
+            .file(file, THREE_PLOTS)
+            .fails()
+            .stderr_has(&[message, at])
+            .run();
+    }
+}

@@ -535,7 +535,7 @@ fn schema_and_loader_refuse_the_same_broken_plans() {
     let v = validator();
     assert!(schema_errors(&v, &as_json(GOOD)).is_empty());
     load(GOOD).unwrap();
-    let cases: [(&str, String); 28] = [
+    let cases: [(&str, String); 30] = [
         ("unknown top-level key", format!("colour = \"red\"\n{GOOD}")),
         (
             "unknown key in [tests]",
@@ -624,6 +624,14 @@ fn schema_and_loader_refuse_the_same_broken_plans() {
                 "alpha = 0.05",
                 "procedure = \"lot-pooling\"\npooling_rule = \"equivalence\"\npooling_slope_margin = 0.05",
             ),
+        ),
+        (
+            "a sheet for a CSV file",
+            GOOD.replace("path = \"d.csv\"", "path = \"d.csv\"\nsheet = \"s\""),
+        ),
+        (
+            "a delimiter for a spreadsheet",
+            GOOD.replace("path = \"d.csv\"", "path = \"d.xlsx\"\ndelimiter = \";\""),
         ),
         (
             "a simultaneous band for a prediction bound",
@@ -884,6 +892,10 @@ fn every_schema_key_is_described_closed_and_accepted_by_the_loader() {
                         v,
                     );
                 }
+            }
+            // A sheet's keys need a spreadsheet's path.
+            if name == "data.sheet" || name == "data.header_row" {
+                doc["data"]["path"] = json!("data.xlsx");
             }
             // [[responses]] takes the place of model.response.
             if path[0] == "responses" {

@@ -81,6 +81,24 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
         source_kind(data_path)
     };
     let (dataset, data_sha256) = match source {
+        // A spreadsheet is a zip archive read whole: hashed, checked against any pin,
+        // then its sheet read from the same bytes.
+        Source::Regular | Source::Pipe | Source::Stdin if plan.data.format.is_sheet() => {
+            let mut bytes = Vec::new();
+            let read = if stdin {
+                std::io::Read::read_to_end(&mut std::io::stdin().lock(), &mut bytes)
+            } else {
+                std::io::Read::read_to_end(&mut open()?, &mut bytes)
+            };
+            read.map_err(|e| {
+                Diagnostic::new(format!("cannot read the data file {data_file}: {e}"))
+            })?;
+            let hash = crate::digest::sha256_hex(&bytes);
+            check_pin(&hash)?;
+            let dataset =
+                data::load_sheet(plan, &bytes).map_err(|e| data_diagnostic(&e, lp, &data_file))?;
+            (dataset, hash)
+        }
         Source::Regular => {
             sniff(open()?, &data_file)?;
             if plan.data.sha256.is_some() {
@@ -249,7 +267,7 @@ fn check_text(head: &[u8], shown: &str) -> Result<(), Diagnostic> {
             "the data file {shown} is not text: it holds a NUL byte at byte {}",
             at + 1
         ))
-        .help("data.path must name a CSV text file; check that it is not an archive, a spreadsheet or an image"));
+        .help("data.path must name a CSV text file, or a spreadsheet with a .xlsx or .ods ending; check that it is not an archive or an image"));
     }
     Ok(())
 }
@@ -324,6 +342,7 @@ pub(super) fn data_diagnostic(e: &data::DataError, lp: &LoadedPlan, data_file: &
         data::PlanKey::Group => Some(spans.group.clone()),
         data::PlanKey::Keep(i) => spans.keep_columns.get(i).cloned(),
         data::PlanKey::Level(i) => spans.levels.get(i).cloned(),
+        data::PlanKey::Sheet => Some(spans.sheet.clone().unwrap_or(spans.data_path.clone())),
     });
     if let data::DataError::OutsideDomain { column, .. } = e {
         let span = if *column == lp.plan.model.response {

@@ -16,6 +16,8 @@ pub enum PlanKey {
     Keep(usize),
     /// The i-th entry of `model.levels`.
     Level(usize),
+    /// `data.sheet` (or `data.path` when the plan names no sheet).
+    Sheet,
 }
 
 impl PlanKey {
@@ -27,6 +29,7 @@ impl PlanKey {
             PlanKey::Group => "model.group".into(),
             PlanKey::Keep(i) => format!("data.keep[{}].column", i + 1),
             PlanKey::Level(i) => format!("model.levels[{}]", i + 1),
+            PlanKey::Sheet => "data.sheet".into(),
         }
     }
 }
@@ -42,15 +45,25 @@ pub struct CellAt {
     pub column: String,
     /// 1-based column position.
     pub column_number: usize,
+    /// In a spreadsheet, the cell as the spreadsheet names it (`cell C12 of sheet
+    /// `assays``), in place of the file line.
+    pub cell: Option<String>,
 }
 
 impl std::fmt::Display for CellAt {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(
-            f,
-            "data row {} (file line {}), column `{}` (column {})",
-            self.row, self.line, self.column, self.column_number
-        )
+        match &self.cell {
+            Some(cell) => write!(
+                f,
+                "{cell} (data row {}, column `{}`)",
+                self.row, self.column
+            ),
+            None => write!(
+                f,
+                "data row {} (file line {}), column `{}` (column {})",
+                self.row, self.line, self.column, self.column_number
+            ),
+        }
     }
 }
 
@@ -206,6 +219,41 @@ pub enum DataError {
         /// The group column.
         column: String,
     },
+    /// A spreadsheet that cannot be opened, or a sheet that cannot be read.
+    #[error("the data file is a spreadsheet, but {0}")]
+    Workbook(String),
+    /// The plan names a sheet the workbook does not have.
+    #[error("the workbook has no sheet `{sheet}`")]
+    SheetMissing {
+        /// The sheet the plan names.
+        sheet: String,
+        /// The workbook's sheets.
+        available: Vec<String>,
+    },
+    /// The sheet holds no cells, or none from the header row down.
+    #[error("{}", if sheet.is_empty() { "the workbook has no sheets".to_string() } else { format!("sheet `{sheet}` holds no rows from its header row down") })]
+    SheetEmpty {
+        /// The sheet (empty when the workbook has none).
+        sheet: String,
+    },
+    /// A formula cell whose value the file does not hold.
+    #[error("{cell} holds the formula `{formula}` but no saved value")]
+    FormulaWithoutValue {
+        /// Where.
+        cell: String,
+        /// The formula.
+        formula: String,
+    },
+    /// Merged cells in the sheet.
+    #[error(
+        "sheet `{sheet}` has merged cells ({range}): their value sits in one cell and the others would read as missing"
+    )]
+    MergedCells {
+        /// The sheet.
+        sheet: String,
+        /// The first merged region.
+        range: String,
+    },
     /// More rows than row numbers can hold.
     #[error("the data file has more than {max} rows, which slopewise does not support")]
     TooManyRows {
@@ -251,6 +299,30 @@ fn list_rows(rows: &[(u64, f64)]) -> String {
 }
 
 impl DataError {
+    /// The error as it reads in the spreadsheet: each cell named by its column letter
+    /// and row in sheet `sheet`, whose used range starts at 0-based column `col0`
+    /// (the text handed to the CSV reader keeps the sheet's row numbers as lines).
+    pub(super) fn in_sheet(self, sheet: &str, col0: u32) -> DataError {
+        let at = |at: CellAt| CellAt {
+            cell: Some(super::sheet::cell_name(
+                sheet,
+                at.line as u32,
+                col0 + at.column_number as u32 - 1,
+            )),
+            ..at
+        };
+        match self {
+            DataError::NotUtf8 { at: a } => DataError::NotUtf8 { at: at(a) },
+            DataError::NotANumber { at: a, text } => DataError::NotANumber { at: at(a), text },
+            DataError::NotFinite { at: a, text } => DataError::NotFinite { at: at(a), text },
+            DataError::Underflow { at: a, text } => DataError::Underflow { at: at(a), text },
+            DataError::Empty | DataError::NoRows => DataError::SheetEmpty {
+                sheet: sheet.to_string(),
+            },
+            other => other,
+        }
+    }
+
     /// The error as it reads for the whole file, when it was found in a part of it
     /// that starts after `rows` data rows (lines are counted afresh, see `lines`).
     pub(super) fn shifted(self, rows: u64) -> DataError {
@@ -321,6 +393,8 @@ impl DataError {
     /// The plan key this error concerns, so the caller can show the plan line.
     pub fn plan_key(&self) -> Option<PlanKey> {
         match self {
+            DataError::SheetMissing { .. } => Some(PlanKey::Sheet),
+            DataError::SheetEmpty { sheet } if !sheet.is_empty() => Some(PlanKey::Sheet),
             DataError::MissingColumn { key, .. } => Some(*key),
             DataError::AbsentLevel { index, .. } => Some(PlanKey::Level(*index)),
             DataError::UnlistedLevel {
@@ -402,6 +476,22 @@ impl DataError {
             }
             DataError::AbsentLevel { .. } => d.help("remove it from model.levels or check its spelling against the data"),
             DataError::TooManyRows { .. } => d.help("split the file"),
+            DataError::Workbook(_) => d.help(
+                "data.path ending in .xlsx or .ods must name a workbook saved by a spreadsheet program; a CSV file needs a .csv (or other) ending",
+            ),
+            DataError::SheetMissing { available, .. } => d.help(format!(
+                "sheets in the workbook: {}; set data.sheet to one of them",
+                available.join(", ")
+            )),
+            DataError::SheetEmpty { .. } => d.help(
+                "check data.sheet and data.header_row: the header row names the columns and the data rows follow it",
+            ),
+            DataError::FormulaWithoutValue { .. } => d.help(
+                "open the workbook in a spreadsheet program and save it again, so every formula's value is stored, or export the sheet as CSV",
+            ),
+            DataError::MergedCells { .. } => {
+                d.help("unmerge the cells and fill in every row's value, or export the sheet as CSV")
+            }
         }
     }
 }

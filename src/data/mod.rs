@@ -13,11 +13,13 @@ mod column;
 mod error;
 mod lines;
 mod rows;
+mod sheet;
 mod split;
 
 pub use column::Column;
 pub use error::{CellAt, DataError, DomainColumn, PlanKey};
 pub use rows::RowNumbers;
+pub use sheet::load_sheet;
 pub use split::{PARALLEL_MIN_BYTES, load_seekable};
 
 use lines::Located;
@@ -320,6 +322,7 @@ impl<'a> Sorter<'a> {
             line,
             column: columns[col].clone(),
             column_number: col + 1,
+            cell: None,
         };
         let cell = |col: usize| -> Result<&[u8], DataError> {
             let raw = &record[col];
@@ -545,6 +548,7 @@ fn read_header<R: Read>(csv: &mut csv::Reader<R>) -> Result<Vec<String>, DataErr
                 line: 1,
                 column: String::from_utf8_lossy(raw).into_owned(),
                 column_number: i + 1,
+                cell: None,
             },
         })?;
         let name = name.trim().to_string();

@@ -89,6 +89,42 @@ pub struct DataSpec {
     pub keep: Vec<KeepRule>,
     /// Field delimiter byte (default `,`).
     pub delimiter: u8,
+    /// What kind of file `path` names, from its extension.
+    pub format: DataFormat,
+    /// For a spreadsheet: the sheet by name (None: the first).
+    pub sheet: Option<String>,
+    /// For a spreadsheet: the 1-based row holding the column names.
+    pub header_row: u32,
+}
+
+/// The kind of data file, from the path's extension (case ignored).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum DataFormat {
+    /// Delimited text (any extension but the spreadsheet ones).
+    Csv,
+    /// An Office Open XML workbook (`.xlsx`).
+    Xlsx,
+    /// An OpenDocument spreadsheet (`.ods`).
+    Ods,
+}
+
+impl DataFormat {
+    /// The format of `path`.
+    pub fn of(path: &str) -> DataFormat {
+        let lower = path.to_ascii_lowercase();
+        if lower.ends_with(".xlsx") {
+            DataFormat::Xlsx
+        } else if lower.ends_with(".ods") {
+            DataFormat::Ods
+        } else {
+            DataFormat::Csv
+        }
+    }
+
+    /// True for the spreadsheet formats.
+    pub fn is_sheet(self) -> bool {
+        self != DataFormat::Csv
+    }
 }
 
 /// One `[[data.keep]]` filter.
@@ -270,6 +306,8 @@ pub struct PlanSpans {
     pub covariate_transform: Range<usize>,
     /// `tests.comparisons`, when given.
     pub comparisons: Option<Range<usize>>,
+    /// `data.sheet`, when given.
+    pub sheet: Option<Range<usize>>,
 }
 
 /// Default cell texts read as missing.
@@ -313,6 +351,53 @@ fn from_raw(file: &str, source: &str, raw: &schema::RawPlan) -> Result<Plan, Pla
             Some(hex)
         }
         None => None,
+    };
+    // A spreadsheet's keys, only with a spreadsheet (and a CSV's delimiter only with a
+    // CSV), so that no key the user wrote is silently ignored.
+    let format = DataFormat::of(&path);
+    let sheet_keys = [
+        data.sheet.as_ref().map(|s| ("data.sheet", s.span())),
+        data.header_row
+            .as_ref()
+            .map(|h| ("data.header_row", h.span())),
+    ];
+    if !format.is_sheet()
+        && let Some((key, span)) = sheet_keys.into_iter().flatten().next()
+    {
+        return Err(err(
+            span,
+            format!("{key} applies to spreadsheets, but data.path names a CSV file"),
+            "data.path must end in .xlsx or .ods for a sheet to be read; remove the key for a CSV file",
+        ));
+    }
+    if format.is_sheet()
+        && let Some(d) = &data.delimiter
+    {
+        return Err(err(
+            d.span(),
+            "data.delimiter applies to CSV files, but data.path names a spreadsheet".into(),
+            "remove data.delimiter: a spreadsheet's cells need none",
+        ));
+    }
+    let sheet = match &data.sheet {
+        Some(s) => Some(nonempty(s, "data.sheet", &err)?),
+        None => None,
+    };
+    let header_row = match &data.header_row {
+        None => 1,
+        Some(h) => match u32::try_from(*h.get_ref()) {
+            Ok(row) if row >= 1 => row,
+            _ => {
+                return Err(err(
+                    h.span(),
+                    format!(
+                        "data.header_row must be a row number of 1 or more, found {}",
+                        h.get_ref()
+                    ),
+                    "give the spreadsheet row that holds the column names, as the spreadsheet numbers it (1 for the first row)",
+                ));
+            }
+        },
     };
     let delimiter = match &data.delimiter {
         None => b',',
@@ -780,6 +865,9 @@ fn from_raw(file: &str, source: &str, raw: &schema::RawPlan) -> Result<Plan, Pla
             sha256,
             keep,
             delimiter,
+            format,
+            sheet,
+            header_row,
         },
         model: ModelSpec {
             response,
@@ -805,6 +893,7 @@ fn from_raw(file: &str, source: &str, raw: &schema::RawPlan) -> Result<Plan, Pla
             keep_columns,
             response_transform: rt_span,
             covariate_transform: ct_span,
+            sheet: data.sheet.as_ref().map(Spanned::span),
             comparisons: raw
                 .tests
                 .as_ref()

@@ -117,6 +117,11 @@ pub(super) struct RawResponseLimits {
 
 #[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
+#[schemars(extend(
+    "if" = {"properties": {"path": {"pattern": "\\.([xX][lL][sS][xX]|[oO][dD][sS])$"}}},
+    "then" = {"not": {"required": ["delimiter"]}},
+    "else" = {"allOf": [{"not": {"required": ["sheet"]}}, {"not": {"required": ["header_row"]}}]}
+))]
 pub(super) struct RawData {
     /// CSV file with a header row, relative to the plan's folder. Required.
     #[schemars(with = "String", extend("pattern" = "\\S", "examples" = ["../demo-data/nursery-2026.csv"]))]
@@ -137,6 +142,14 @@ pub(super) struct RawData {
     /// names a column and exactly one of `equals` or `one_of`.
     #[schemars(with = "Vec<RawKeep>", extend("examples" = [[{"column": "status", "equals": "measured"}]]))]
     pub keep: Vec<Spanned<RawKeep>>,
+    /// For a spreadsheet (`path` ending in .xlsx or .ods): the sheet to read, by
+    /// name. Default: the first sheet.
+    #[schemars(with = "Option<String>", extend("examples" = ["assays"]))]
+    pub sheet: Option<Spanned<String>>,
+    /// For a spreadsheet: the row (1-based, as the spreadsheet numbers it) that holds
+    /// the column names; the data rows follow it. Default 1.
+    #[schemars(with = "Option<u32>", extend("minimum" = 1, "default" = 1, "examples" = [3]))]
+    pub header_row: Option<Spanned<i64>>,
 }
 
 /// One row filter: keep the rows whose `column` holds an accepted text.
