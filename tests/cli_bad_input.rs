@@ -1403,3 +1403,45 @@ fn spreadsheet_keys_and_csv_keys_stay_with_their_files() {
             .run();
     }
 }
+
+#[test]
+fn parquet_problems_name_the_column_and_its_type() {
+    Test::new("parquet_text_column")
+        .plan(&sheet_plan("stability_text.parquet", ""))
+        .file(
+            "stability_text.parquet",
+            sheet_fixture("stability_text.parquet"),
+        )
+        .fails()
+        .stderr_has(&[
+            "error: column `assay_pct` of the Parquet file holds text, not numbers",
+            "--> plan.toml:6:12",
+            "stored as integers, floats or decimals",
+        ])
+        .run();
+    Test::new("parquet_not_parquet")
+        .plan(&sheet_plan("fake.parquet", ""))
+        .file("fake.parquet", THREE_PLOTS)
+        .fails()
+        .stderr_has(&["the data file is a Parquet file, but it cannot be read as Parquet"])
+        .run();
+    for (name, keys, message) in [
+        (
+            "parquet_delimiter",
+            "delimiter = \";\"",
+            "data.delimiter applies to CSV files, but data.path names a Parquet file",
+        ),
+        (
+            "parquet_sheet",
+            "sheet = \"x\"",
+            "data.sheet applies to spreadsheets, but data.path names a Parquet file",
+        ),
+    ] {
+        Test::new(name)
+            .plan(&sheet_plan("stability.parquet", keys))
+            .file("stability.parquet", sheet_fixture("stability.parquet"))
+            .fails()
+            .stderr_has(&[message, "--> plan.toml:4:"])
+            .run();
+    }
+}

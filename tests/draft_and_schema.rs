@@ -535,7 +535,7 @@ fn schema_and_loader_refuse_the_same_broken_plans() {
     let v = validator();
     assert!(schema_errors(&v, &as_json(GOOD)).is_empty());
     load(GOOD).unwrap();
-    let cases: [(&str, String); 30] = [
+    let cases: [(&str, String); 31] = [
         ("unknown top-level key", format!("colour = \"red\"\n{GOOD}")),
         (
             "unknown key in [tests]",
@@ -628,6 +628,10 @@ fn schema_and_loader_refuse_the_same_broken_plans() {
         (
             "a sheet for a CSV file",
             GOOD.replace("path = \"d.csv\"", "path = \"d.csv\"\nsheet = \"s\""),
+        ),
+        (
+            "a delimiter for a Parquet file",
+            GOOD.replace("path = \"d.csv\"", "path = \"d.parquet\"\ndelimiter = \";\""),
         ),
         (
             "a delimiter for a spreadsheet",

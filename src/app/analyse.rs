@@ -81,9 +81,11 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
         source_kind(data_path)
     };
     let (dataset, data_sha256) = match source {
-        // A spreadsheet is a zip archive read whole: hashed, checked against any pin,
-        // then its sheet read from the same bytes.
-        Source::Regular | Source::Pipe | Source::Stdin if plan.data.format.is_sheet() => {
+        // A spreadsheet or a Parquet file is read whole: hashed, checked against any
+        // pin, then parsed from the same bytes.
+        Source::Regular | Source::Pipe | Source::Stdin
+            if plan.data.format != crate::plan::DataFormat::Csv =>
+        {
             let mut bytes = Vec::new();
             let read = if stdin {
                 std::io::Read::read_to_end(&mut std::io::stdin().lock(), &mut bytes)
@@ -95,8 +97,12 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
             })?;
             let hash = crate::digest::sha256_hex(&bytes);
             check_pin(&hash)?;
-            let dataset =
-                data::load_sheet(plan, &bytes).map_err(|e| data_diagnostic(&e, lp, &data_file))?;
+            let dataset = if plan.data.format.is_sheet() {
+                data::load_sheet(plan, &bytes)
+            } else {
+                data::load_parquet(plan, &bytes)
+            }
+            .map_err(|e| data_diagnostic(&e, lp, &data_file))?;
             (dataset, hash)
         }
         Source::Regular => {

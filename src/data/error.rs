@@ -244,6 +244,19 @@ pub enum DataError {
         /// The formula.
         formula: String,
     },
+    /// A Parquet file that cannot be read, or a shape slopewise does not read.
+    #[error("the data file is a Parquet file, but {0}")]
+    Parquet(String),
+    /// A Parquet column the plan reads as numbers holds another type.
+    #[error("column `{column}` of the Parquet file holds {found}, not numbers")]
+    ParquetType {
+        /// The column.
+        column: String,
+        /// Its type, in words.
+        found: String,
+        /// Which plan key names it.
+        key: PlanKey,
+    },
     /// Merged cells in the sheet.
     #[error(
         "sheet `{sheet}` has merged cells ({range}): their value sits in one cell and the others would read as missing"
@@ -394,6 +407,7 @@ impl DataError {
     pub fn plan_key(&self) -> Option<PlanKey> {
         match self {
             DataError::SheetMissing { .. } => Some(PlanKey::Sheet),
+            DataError::ParquetType { key, .. } => Some(*key),
             DataError::SheetEmpty { sheet } if !sheet.is_empty() => Some(PlanKey::Sheet),
             DataError::MissingColumn { key, .. } => Some(*key),
             DataError::AbsentLevel { index, .. } => Some(PlanKey::Level(*index)),
@@ -488,6 +502,12 @@ impl DataError {
             ),
             DataError::FormulaWithoutValue { .. } => d.help(
                 "open the workbook in a spreadsheet program and save it again, so every formula's value is stored, or export the sheet as CSV",
+            ),
+            DataError::Parquet(_) => d.help(
+                "data.path ending in .parquet must name a Parquet file with one flat table; a CSV file needs a .csv (or other) ending",
+            ),
+            DataError::ParquetType { .. } => d.help(
+                "the response and the covariate must be stored as integers, floats or decimals; write the column with a numeric type, or name another column in the plan",
             ),
             DataError::MergedCells { .. } => {
                 d.help("unmerge the cells and fill in every row's value, or export the sheet as CSV")

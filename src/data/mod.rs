@@ -12,12 +12,14 @@
 mod column;
 mod error;
 mod lines;
+mod parquet;
 mod rows;
 mod sheet;
 mod split;
 
 pub use column::Column;
 pub use error::{CellAt, DataError, DomainColumn, PlanKey};
+pub use parquet::load_parquet;
 pub use rows::RowNumbers;
 pub use sheet::load_sheet;
 pub use split::{PARALLEL_MIN_BYTES, load_seekable};

@@ -79,7 +79,7 @@ pub struct Plan {
 /// The `[data]` table.
 #[derive(Debug, Clone, PartialEq)]
 pub struct DataSpec {
-    /// CSV path as written in the plan (relative to the plan's folder).
+    /// Data path as written in the plan (relative to the plan's folder).
     pub path: String,
     /// Cell texts read as missing (compared after trimming spaces).
     pub missing: Vec<String>,
@@ -106,6 +106,8 @@ pub enum DataFormat {
     Xlsx,
     /// An OpenDocument spreadsheet (`.ods`).
     Ods,
+    /// A Parquet file (`.parquet`).
+    Parquet,
 }
 
 impl DataFormat {
@@ -116,6 +118,8 @@ impl DataFormat {
             DataFormat::Xlsx
         } else if lower.ends_with(".ods") {
             DataFormat::Ods
+        } else if lower.ends_with(".parquet") {
+            DataFormat::Parquet
         } else {
             DataFormat::Csv
         }
@@ -123,7 +127,16 @@ impl DataFormat {
 
     /// True for the spreadsheet formats.
     pub fn is_sheet(self) -> bool {
-        self != DataFormat::Csv
+        matches!(self, DataFormat::Xlsx | DataFormat::Ods)
+    }
+
+    /// The kind of file, as messages name it.
+    pub fn name(self) -> &'static str {
+        match self {
+            DataFormat::Csv => "a CSV file",
+            DataFormat::Xlsx | DataFormat::Ods => "a spreadsheet",
+            DataFormat::Parquet => "a Parquet file",
+        }
     }
 }
 
@@ -366,17 +379,23 @@ fn from_raw(file: &str, source: &str, raw: &schema::RawPlan) -> Result<Plan, Pla
     {
         return Err(err(
             span,
-            format!("{key} applies to spreadsheets, but data.path names a CSV file"),
+            format!(
+                "{key} applies to spreadsheets, but data.path names {}",
+                format.name()
+            ),
             "data.path must end in .xlsx or .ods for a sheet to be read; remove the key for a CSV file",
         ));
     }
-    if format.is_sheet()
+    if format != DataFormat::Csv
         && let Some(d) = &data.delimiter
     {
         return Err(err(
             d.span(),
-            "data.delimiter applies to CSV files, but data.path names a spreadsheet".into(),
-            "remove data.delimiter: a spreadsheet's cells need none",
+            format!(
+                "data.delimiter applies to CSV files, but data.path names {}",
+                format.name()
+            ),
+            "remove data.delimiter: its cells need none",
         ));
     }
     let sheet = match &data.sheet {

@@ -117,13 +117,21 @@ pub(super) struct RawResponseLimits {
 
 #[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
-#[schemars(extend(
-    "if" = {"properties": {"path": {"pattern": "\\.([xX][lL][sS][xX]|[oO][dD][sS])$"}}},
-    "then" = {"not": {"required": ["delimiter"]}},
-    "else" = {"allOf": [{"not": {"required": ["sheet"]}}, {"not": {"required": ["header_row"]}}]}
-))]
+#[schemars(extend("allOf" = [
+    {
+        "if": {"properties": {"path": {"pattern": "\\.([xX][lL][sS][xX]|[oO][dD][sS]|[pP][aA][rR][qQ][uU][eE][tT])$"}}},
+        "then": {"not": {"required": ["delimiter"]}}
+    },
+    {
+        "if": {"not": {"properties": {"path": {"pattern": "\\.([xX][lL][sS][xX]|[oO][dD][sS])$"}}}},
+        "then": {"allOf": [{"not": {"required": ["sheet"]}}, {"not": {"required": ["header_row"]}}]}
+    }
+]))]
 pub(super) struct RawData {
-    /// CSV file with a header row, relative to the plan's folder. Required.
+    /// The data file, relative to the plan's folder ("-": standard input). Required.
+    /// A CSV file with a header row; a path ending in .xlsx or .ods is read as a
+    /// spreadsheet (see `sheet`, `header_row`), one ending in .parquet as a Parquet
+    /// table.
     #[schemars(with = "String", extend("pattern" = "\\S", "examples" = ["../demo-data/nursery-2026.csv"]))]
     pub path: Spanned<String>,
     /// Cell texts read as missing, compared after trimming spaces. Rows with a missing
