@@ -49,7 +49,7 @@ const STIRLING_FROM: f64 = 15.0;
 
 /// ln of x^a y^b / B(a, b) with y = 1 − x given separately (so that a y near 0 keeps
 /// its digits), accurate for any a, b > 0 up to 1e12 and beyond.
-fn ln_beta_prefactor(a: f64, b: f64, x: f64, y: f64) -> f64 {
+pub(crate) fn ln_beta_prefactor(a: f64, b: f64, x: f64, y: f64) -> f64 {
     let big = |v: f64| v >= STIRLING_FROM;
     match (big(a), big(b)) {
         (false, false) => a * x.ln() + b * y.ln() - (ln_gamma(a) + ln_gamma(b) - ln_gamma(a + b)),

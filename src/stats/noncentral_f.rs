@@ -5,15 +5,17 @@
 //! mixture of central ones (Johnson, Kotz & Balakrishnan 1995, ch. 30):
 //! P(F ≤ f) = Σ_j e^{−λ/2} (λ/2)^j / j! · I_x(d1/2 + j, d2/2). The sum runs over
 //! j within 12 standard deviations plus 60 of the Poisson mode, which leaves out
-//! Poisson mass below 1e-30; each term's beta tail comes from the crate's own
-//! incomplete beta, the upper tail summed from upper tails so it keeps its digits.
+//! Poisson mass below 1e-30; the beta tails come from the crate's own incomplete beta
+//! at the two ends of that range and from the recurrence between neighbours in
+//! between (see [`tails`]), the upper tail summed from upper tails so it keeps its
+//! digits.
 //!
 //! Confidence limits for λ invert the distribution in λ (Steiger 2004): the lower
 //! limit solves P(F ≤ F_obs; λ) = 1 − a and the upper P(F ≤ F_obs; λ) = a with
 //! a = (1 − confidence)/2, each 0 when the equation has no root above zero. The cdf
 //! falls as λ grows, so a bracket doubled outward and bisected finds each root.
 
-use super::dist::{beta_tails, f_upper_quantile};
+use super::dist::{beta_tails, f_upper_quantile, ln_beta_prefactor};
 use statrs::function::gamma::ln_gamma;
 
 /// (P(F ≤ f), P(F > f)) for the noncentral F.
@@ -34,20 +36,40 @@ pub fn tails(f: f64, d1: f64, d2: f64, lambda: f64) -> (f64, f64) {
     let mode = mu.floor();
     let reach = (12.0 * mu.sqrt() + 60.0).ceil();
     let (lo, hi) = ((mode - reach).max(0.0) as u64, (mode + reach) as u64);
+    let (a0, b) = (d1 / 2.0, d2 / 2.0);
+    // Two incomplete betas, at the ends of the range, and the rest by the recurrence
+    // I_x(a + 1, b) = I_x(a, b) − T(a), T(a) = x^a y^b / (a B(a, b)) (Abramowitz &
+    // Stegun 1964, 26.5.16), each tail run in the direction in which it only adds:
+    // the upper tails up from `lo`, the lower tails down from `hi`. One continued
+    // fraction per end instead of one per term keeps a large noncentrality (a long
+    // Poisson range) cheap.
+    let n = (hi - lo) as usize + 1;
+    let t: Vec<f64> = (0..n.saturating_sub(1))
+        .map(|i| {
+            let a = a0 + (lo as usize + i) as f64;
+            (ln_beta_prefactor(a, b, x, y).exp() / a).min(1.0)
+        })
+        .collect();
+    let mut upper = Vec::with_capacity(n);
+    upper.push(beta_tails(a0 + lo as f64, b, x, y).1);
+    for i in 0..n - 1 {
+        upper.push(upper[i] + t[i]);
+    }
+    let mut lower = vec![0.0; n];
+    lower[n - 1] = beta_tails(a0 + hi as f64, b, x, y).0;
+    for i in (0..n - 1).rev() {
+        lower[i] = lower[i + 1] + t[i];
+    }
     let (mut cdf, mut sf) = (0.0, 0.0);
-    for j in lo..=hi {
-        let j = j as f64;
+    for (i, (l, u)) in lower.iter().zip(&upper).enumerate() {
+        let j = (lo as usize + i) as f64;
         let w = if mu == 0.0 {
             if j == 0.0 { 1.0 } else { 0.0 }
         } else {
             (-mu + j * mu.ln() - ln_gamma(j + 1.0)).exp()
         };
-        if w == 0.0 {
-            continue;
-        }
-        let (lower, upper) = beta_tails(d1 / 2.0 + j, d2 / 2.0, x, y);
-        cdf += w * lower;
-        sf += w * upper;
+        cdf += w * l.min(1.0);
+        sf += w * u.min(1.0);
     }
     (cdf.clamp(0.0, 1.0), sf.clamp(0.0, 1.0))
 }
