@@ -8,9 +8,12 @@
 //! joined, so every row number, line number and error is the one a single pass
 //! would give.
 //!
-//! A line end is a record boundary only outside quoted fields. Both halves watch
-//! their bytes for the quote character; if either holds one after the header, the
-//! halves stop, are dropped, and the file is read again in one pass. The cut depends only on the
+//! A line end is a record boundary only outside quoted fields, so the cut follows the
+//! quoting from the file's first byte ([`find_cut`]): a quote opens a field only at
+//! its start, `""` inside one is a quote, and a quote followed by a delimiter, a line
+//! end or the end of the file closes it. Where a quote stands anywhere else (a stray
+//! quote, or text after a closing quote) the reader's own reading of it decides, so
+//! no cut is made and the file is read in one pass. The cut depends only on the
 //! file's bytes, so the same file gives the same results on every run.
 
 use std::io::{self, Read, Seek, SeekFrom};
@@ -43,7 +46,7 @@ where
 {
     let io = |e: io::Error| DataError::Io(e.to_string());
     let cut = if len >= min_bytes.max(2) {
-        find_cut(open().map_err(io)?, len).map_err(io)?
+        find_cut(open().map_err(io)?, len, plan.data.delimiter).map_err(io)?
     } else {
         None
     };
@@ -58,8 +61,8 @@ where
     read.map_err(|e| e.resolve(open()))
 }
 
-/// The two-thread reading, cut at byte `cut`; `None` when a quote character makes
-/// the cut unsafe and the file must be read in one pass.
+/// The two-thread reading, cut at byte `cut` (a record boundary); `None` when the
+/// header reaches the cut and the file must be read in one pass.
 fn in_halves<R, F>(plan: &Plan, cut: u64, open: &F) -> Option<Result<Dataset, Located>>
 where
     R: Read + Seek + Send,
@@ -67,65 +70,49 @@ where
 {
     let io = |e: io::Error| Located::from(DataError::Io(e.to_string()));
     let first = match open() {
-        Ok(file) => Scanning::new(file.take(cut)),
+        Ok(file) => file.take(cut),
         Err(e) => return Some(Err(io(e))),
     };
     let mut csv = csv_reader(plan, true, first);
-    // A header that reaches the cut (a quoted name holding line ends) was cut
-    // short, and its error may be the cut's doing: one pass reads it whole. A
-    // header that ends before the cut reads as in one pass, quotes and all, so
-    // quotes count only after it.
+    // A header that reaches the cut was cut short, and its error may be the cut's
+    // doing: one pass reads it whole.
     let columns = read_header(&mut csv);
     let header_end = csv.position().byte();
     let columns = match columns {
         Ok(columns) if header_end < cut => columns,
         _ => return None,
     };
-    csv.get_mut().watch_from = header_end;
     let sorter = match Sorter::new(plan, &columns) {
         Ok(sorter) => sorter,
         Err(e) => return Some(Err(e.into())),
     };
     let (first, second) = std::thread::scope(|scope| {
-        let second = scope.spawn(|| -> Result<Half<R>, Located> {
+        let second = scope.spawn(|| -> Result<Half, Located> {
             let mut file = open().map_err(io)?;
             file.seek(SeekFrom::Start(cut)).map_err(io)?;
-            let mut csv = csv_reader(plan, false, Scanning::new(file));
+            let mut csv = csv_reader(plan, false, file);
             let mut part = sorter.part();
             let read = sorter.read(&mut csv, &mut part);
-            Ok(Half {
-                read,
-                part,
-                scan: csv.into_inner(),
-            })
+            Ok(Half { read, part })
         });
         let mut part = sorter.part();
         let read = sorter.read(&mut csv, &mut part);
-        let first = Half {
-            read,
-            part,
-            scan: csv.into_inner(),
-        };
+        let first = Half { read, part };
         let second = second
             .join()
             .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
         (first, second)
     });
 
-    // Without quotes the first half reads exactly as one pass would up to the cut,
-    // so its own error stands whatever the second half holds.
-    if !first.scan.quoted()
-        && let Err(e) = first.read
-    {
+    // The cut is a record boundary, so the first half reads exactly as one pass
+    // would up to it: its own error stands whatever the second half holds.
+    if let Err(e) = first.read {
         return Some(Err(e));
     }
     let second = match second {
         Ok(second) => second,
         Err(e) => return Some(Err(e)),
     };
-    if first.scan.quoted() || second.scan.quoted() {
-        return None;
-    }
     let mut part = first.part;
     if let Err(e) = second.read {
         return Some(Err(Located {
@@ -140,79 +127,111 @@ where
     )
 }
 
-/// One half as read: how the reading ended, what it gave, what passed the scanner.
-struct Half<R> {
+/// One half as read: how the reading ended and what it gave.
+struct Half {
     read: Result<(), Located>,
     part: Part,
-    scan: Scanning<R>,
 }
 
-/// The byte offset just past the first line end at or after the middle of the file
-/// that is followed by at least three bytes and no byte-order mark, or `None` when
-/// there is none within reach.
-fn find_cut<R: Read + Seek>(mut file: R, len: u64) -> io::Result<Option<u64>> {
+/// Bytes read at a time while following the quoting.
+const SCAN_CHUNK: usize = 1 << 20;
+
+/// The byte offset just past the first line end outside quoted fields at or after
+/// the middle of the file, followed by at least three bytes and no byte-order mark;
+/// `None` when there is none within [`CUT_SEARCH`] bytes of the middle, or when a
+/// quote stands where a well-formed file has none (see the module notes). The
+/// quoting is followed from the first byte, jumping from quote to quote, so a file
+/// without quotes costs one scan for the quote byte up to the middle.
+fn find_cut<R: Read>(mut file: R, len: u64, delimiter: u8) -> io::Result<Option<u64>> {
     let middle = len / 2;
-    file.seek(SeekFrom::Start(middle))?;
-    let mut buf = vec![0u8; CUT_SEARCH];
-    let mut filled = 0;
-    while filled < buf.len() {
-        let n = file.read(&mut buf[filled..])?;
+    let boundary = |b: u8| b == delimiter || b == b'\n' || b == b'\r';
+    let mut buf = vec![0u8; SCAN_CHUNK];
+    let mut offset = 0u64;
+    let mut in_quotes = false;
+    // The byte before the chunk (the start of the file counts as a line end), and
+    // a quote inside a quoted field at the end of the last chunk, waiting for the
+    // byte that says whether it closes the field or is the first of `""`.
+    let mut before = b'\n';
+    let mut pending = false;
+    loop {
+        let mut n = 0;
+        while n < buf.len() {
+            let got = file.read(&mut buf[n..])?;
+            if got == 0 {
+                break;
+            }
+            n += got;
+        }
         if n == 0 {
-            break;
+            return Ok(None);
         }
-        filled += n;
-    }
-    let bytes = &buf[..filled];
-    // The CSV reader drops a byte-order mark at the start of its input, so the
-    // second half must not start with one (it would vanish from a cell).
-    let cut = (0..bytes.len())
-        .filter(|&i| bytes[i] == b'\n')
-        .find(|&i| bytes.get(i + 1..i + 4).is_some_and(|next| next != BOM))
-        .map(|i| middle + i as u64 + 1)
-        .filter(|&cut| cut < len);
-    Ok(cut)
-}
-
-/// A reader that watches its bytes for the quote character. Once it has seen one
-/// at or after `watch_from` it reports the end of its input, so a reading that must
-/// be redone in one pass stops early.
-struct Scanning<R> {
-    inner: R,
-    /// Bytes passed so far.
-    pos: u64,
-    /// Offset from which a quote counts (the first half's header may hold quotes).
-    watch_from: u64,
-    /// Offset of the last quote seen.
-    last_quote: Option<u64>,
-}
-
-impl<R> Scanning<R> {
-    fn new(inner: R) -> Self {
-        Scanning {
-            inner,
-            pos: 0,
-            watch_from: 0,
-            last_quote: None,
+        let chunk = &buf[..n];
+        let mut i = if offset == 0 && chunk.starts_with(BOM) {
+            BOM.len()
+        } else {
+            0
+        };
+        if pending {
+            pending = false;
+            match chunk[i] {
+                b'"' => i += 1,
+                b if boundary(b) => in_quotes = false,
+                _ => return Ok(None),
+            }
         }
-    }
-
-    /// True when a quote was seen where it counts.
-    fn quoted(&self) -> bool {
-        self.last_quote.is_some_and(|q| q >= self.watch_from)
-    }
-}
-
-impl<R: Read> Read for Scanning<R> {
-    fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
-        if self.quoted() {
-            return Ok(0);
+        while i < n {
+            if in_quotes {
+                let Some(q) = memchr::memchr(b'"', &chunk[i..]).map(|q| i + q) else {
+                    i = n;
+                    break;
+                };
+                match chunk.get(q + 1) {
+                    None => {
+                        pending = true;
+                        i = n;
+                    }
+                    Some(b'"') => i = q + 2,
+                    Some(&b) if boundary(b) => {
+                        in_quotes = false;
+                        i = q + 1;
+                    }
+                    Some(_) => return Ok(None),
+                }
+                continue;
+            }
+            // Outside quotes: the next quote, and past the middle the next line end.
+            let quote = memchr::memchr(b'"', &chunk[i..]).map(|q| i + q);
+            let from = i.max(middle.saturating_sub(offset).min(n as u64) as usize);
+            let line_end = memchr::memchr(b'\n', &chunk[from..]).map(|q| from + q);
+            match (quote, line_end) {
+                (_, Some(e)) if quote.is_none_or(|q| e < q) => {
+                    let cut = offset + e as u64 + 1;
+                    if cut > middle + CUT_SEARCH as u64 {
+                        return Ok(None);
+                    }
+                    match chunk.get(e + 1..e + 4) {
+                        Some(next) if next != BOM && cut < len => return Ok(Some(cut)),
+                        _ => i = e + 1,
+                    }
+                }
+                (Some(q), _) => {
+                    let prev = if q == 0 { before } else { chunk[q - 1] };
+                    let at_field_start =
+                        boundary(prev) || (offset == 0 && q == BOM.len() && chunk.starts_with(BOM));
+                    if !at_field_start {
+                        return Ok(None);
+                    }
+                    in_quotes = true;
+                    i = q + 1;
+                }
+                (None, _) => i = n,
+            }
         }
-        let n = self.inner.read(buf)?;
-        if let Some(i) = buf[..n].iter().rposition(|&b| b == b'"') {
-            self.last_quote = Some(self.pos + i as u64);
+        before = chunk[n - 1];
+        offset += n as u64;
+        if offset > middle + CUT_SEARCH as u64 {
+            return Ok(None);
         }
-        self.pos += n as u64;
-        Ok(n)
     }
 }
 
@@ -371,7 +390,7 @@ mod tests {
     }
 
     #[test]
-    fn quotes_anywhere_mean_one_pass() {
+    fn quoted_line_ends_near_the_cut_read_as_in_one_pass() {
         let plan = plan_with("", "");
         // A quoted field holding a line end right where the cut would fall.
         for at in [2, 19, 20, 21, 39] {
@@ -446,5 +465,82 @@ mod tests {
         })
         .unwrap();
         assert_eq!(d.rows_read, 1);
+    }
+
+    /// The byte offsets where a one-pass reader starts each record (the header's
+    /// included), from the csv crate itself.
+    fn record_starts(text: &str) -> Vec<u64> {
+        let mut reader = csv::ReaderBuilder::new()
+            .has_headers(false)
+            .flexible(true)
+            .from_reader(text.as_bytes());
+        let mut starts = Vec::new();
+        let mut record = csv::ByteRecord::new();
+        // A record after a CRLF is placed at its `\n`: its first byte follows it.
+        while reader.read_byte_record(&mut record).unwrap() {
+            let at = record.position().unwrap().byte();
+            starts.push(if text.as_bytes()[at as usize] == b'\n' {
+                at + 1
+            } else {
+                at
+            });
+        }
+        starts
+    }
+
+    #[test]
+    fn quoted_files_are_cut_at_a_record_boundary_and_read_in_halves() {
+        let plan = plan_with("", "");
+        // Every field quoted, some holding a delimiter, a doubled quote or a line
+        // end, and one long field spanning lines right across the middle.
+        let rows = 200;
+        let mut text = String::from("\"g\",\"x\",\"y\"\n");
+        for i in 0..rows {
+            let label = match i % 4 {
+                0 => "\"a, b\"".to_string(),
+                1 => "\"say \"\"b\"\"\"".to_string(),
+                2 => "\"c\nc\"".to_string(),
+                _ => "\"\"".to_string(),
+            };
+            let label = if i == rows / 2 {
+                "\"long\nlong\nlong\"".to_string()
+            } else {
+                label
+            };
+            text.push_str(&format!("{label},\"{}\",\"{}\"\r\n", i % 9, (i * 7) % 11));
+        }
+        let cut = find_cut(text.as_bytes(), text.len() as u64, b',').unwrap();
+        let cut = cut.expect("a well-formed quoted file is cut");
+        assert!(cut >= text.len() as u64 / 2);
+        assert!(
+            record_starts(&text).contains(&cut),
+            "cut {cut} is not a record start"
+        );
+        assert_same(&plan, &text);
+        // The dataset really came from two halves: same as one pass, cut or not.
+        let two = in_halves(&plan, &text).unwrap();
+        assert_eq!(two.rows_read, rows as u64);
+    }
+
+    #[test]
+    fn stray_quotes_leave_the_reading_to_one_pass() {
+        let plan = plan_with("", "");
+        // A quote inside an unquoted field, and text after a closing quote: the
+        // reader's own reading of them decides, so no cut is made.
+        for stray in ["g,5\",1", "\"g\"x,5,1"] {
+            let text = csv(40, |i| (i == 3).then(|| stray.to_string()));
+            assert_eq!(
+                find_cut(text.as_bytes(), text.len() as u64, b',').unwrap(),
+                None,
+                "{stray}"
+            );
+            assert_same(&plan, &text);
+        }
+        // Quotes that close before the middle leave the cut after it.
+        let text = csv(40, |i| (i == 3).then(|| "\"a\",1,2".to_string()));
+        let cut = find_cut(text.as_bytes(), text.len() as u64, b',')
+            .unwrap()
+            .unwrap();
+        assert!(record_starts(&text).contains(&cut));
     }
 }
