@@ -1193,7 +1193,7 @@ fn attributes_plan(first: &str, second: &str, extra: &str) -> String {
 fn several_attributes_refuse_what_would_be_ambiguous_or_lost() {
     let mass = "column = \"mass_g\"";
     let width = "column = \"width_cm\"";
-    let cases: [(&str, String, &str, &str); 6] = [
+    let cases: [(&str, String, &str, &str); 9] = [
         (
             "attributes_unknown_limit_key",
             attributes_plan(&format!("{mass}\nlimits = {{ lowr = 1.0 }}"), width, ""),
@@ -1238,6 +1238,24 @@ fn several_attributes_refuse_what_would_be_ambiguous_or_lost() {
             "limits.max_beyond must be a finite number of at least 0, found -1",
             "--> plan.toml:8:14",
         ),
+        (
+            "attributes_and_response_unit",
+            attributes_plan(mass, width, "[model.units]\nresponse = \"g\""),
+            "[model] sets the response's transform or unit beside [[responses]]",
+            "--> plan.toml:4:1",
+        ),
+        (
+            "attributes_and_response_transform",
+            attributes_plan(mass, width, "transform = { response = \"log\" }"),
+            "[model] sets the response's transform or unit beside [[responses]]",
+            "--> plan.toml:4:1",
+        ),
+        (
+            "attributes_with_data_on_stdin",
+            attributes_plan(mass, width, "").replace("path = \"data.csv\"", "path = \"-\""),
+            "a plan with several [[responses]] reads its data once per attribute, and standard input can be read only once",
+            "--> plan.toml:3:8",
+        ),
     ];
     for (name, plan, message, at) in cases {
         Test::new(name)
@@ -1247,6 +1265,20 @@ fn several_attributes_refuse_what_would_be_ambiguous_or_lost() {
             .stderr_has(&[message, at])
             .run();
     }
+}
+
+#[test]
+fn a_model_without_a_response_or_attributes_says_what_to_add() {
+    let plan = BASE_PLAN.replace("    response = \"mass_g\"\n", "");
+    Test::new("model_without_response")
+        .plan(&plan)
+        .data(THREE_PLOTS)
+        .fails()
+        .stderr_has(&[
+            "[model] names no response",
+            "add `response = \"column\"` under [model], or list the attributes under [[responses]]",
+        ])
+        .run();
 }
 
 #[test]

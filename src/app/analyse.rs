@@ -8,6 +8,7 @@ use super::plan_file::LoadedPlan;
 use super::typst;
 use crate::diagnostic::Diagnostic;
 use crate::digest::HashingReader;
+use crate::plan::DataFormat;
 use crate::results::Provenance;
 use crate::{BUILD_COMMIT, RUSTC_VERSION, TOOL_VERSION, analysis, data};
 
@@ -81,40 +82,17 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
         source_kind(data_path)
     };
     let (dataset, data_sha256) = match source {
-        // A spreadsheet or a Parquet file is read whole: hashed, checked against any
-        // pin, then parsed from the same bytes.
-        Source::Regular | Source::Pipe | Source::Stdin
-            if plan.data.format != crate::plan::DataFormat::Csv =>
-        {
-            let mut bytes = Vec::new();
-            let read = if stdin {
-                std::io::Read::read_to_end(&mut std::io::stdin().lock(), &mut bytes)
-            } else {
-                std::io::Read::read_to_end(&mut open()?, &mut bytes)
-            };
-            read.map_err(|e| {
-                Diagnostic::new(format!("cannot read the data file {data_file}: {e}"))
-            })?;
-            let hash = crate::digest::sha256_hex(&bytes);
-            check_pin(&hash)?;
-            let dataset = if plan.data.format.is_sheet() {
-                data::load_sheet(plan, &bytes)
-            } else {
-                data::load_parquet(plan, &bytes)
-            }
-            .map_err(|e| data_diagnostic(&e, lp, &data_file))?;
-            (dataset, hash)
-        }
-        Source::Regular => {
+        Source::Regular if plan.data.format == DataFormat::Csv => {
             sniff(open()?, &data_file)?;
             if plan.data.sha256.is_some() {
                 check_pin(&hash_file(open()?, &data_file)?)?;
             }
             read_regular(lp, data_path, &data_file, open()?)?
         }
-        Source::Pipe | Source::Stdin => {
-            // A pipe can be read only once: read it whole, hash those bytes, and
-            // parse exactly them, so the record, the pin and the parse agree.
+        // A pipe can be read only once, and a spreadsheet or a Parquet file is read
+        // whole: read the bytes, hash them, and parse exactly them, so the record,
+        // the pin and the parse agree.
+        Source::Regular | Source::Pipe | Source::Stdin => {
             let mut bytes = Vec::new();
             let read = if stdin {
                 std::io::Read::read_to_end(&mut std::io::stdin().lock(), &mut bytes)
@@ -124,11 +102,17 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
             read.map_err(|e| {
                 Diagnostic::new(format!("cannot read the data file {data_file}: {e}"))
             })?;
-            check_text(&bytes, &data_file)?;
+            if plan.data.format == DataFormat::Csv {
+                check_text(&bytes, &data_file)?;
+            }
             let hash = crate::digest::sha256_hex(&bytes);
             check_pin(&hash)?;
-            let dataset =
-                data::load(plan, &bytes).map_err(|e| data_diagnostic(&e, lp, &data_file))?;
+            let dataset = match plan.data.format {
+                DataFormat::Csv => data::load(plan, &bytes),
+                DataFormat::Xlsx | DataFormat::Ods => data::load_sheet(plan, &bytes),
+                DataFormat::Parquet => data::load_parquet(plan, &bytes),
+            }
+            .map_err(|e| data_diagnostic(&e, lp, &data_file))?;
             (dataset, hash)
         }
         Source::Other(what) => {
