@@ -13,6 +13,17 @@ pub struct Cli {
     pub command: Command,
 }
 
+/// The SQL dialects `slopewise sql` writes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum SqlDialect {
+    /// PostgreSQL.
+    Postgres,
+    /// Spark SQL.
+    Spark,
+    /// Standard SQL (the SQL:2003 regression aggregates).
+    Ansi,
+}
+
 /// The subcommands.
 #[derive(Debug, Subcommand)]
 pub enum Command {
@@ -111,6 +122,19 @@ pub enum Command {
         /// Write the plan here (refuses to overwrite) instead of printing it.
         #[arg(long, value_name = "PLAN.toml")]
         out: Option<PathBuf>,
+    },
+    /// Print the SQL query that computes the plan's per-group moments inside a
+    /// database or cluster; save its result as CSV and name it in `data.moments`.
+    Sql {
+        /// Plan file (TOML).
+        #[arg(value_name = "PLAN.toml")]
+        plan: PathBuf,
+        /// The engine's dialect.
+        #[arg(long, value_enum)]
+        dialect: SqlDialect,
+        /// The table (or view) that holds the rows, `schema.table` allowed.
+        #[arg(long, value_name = "NAME")]
+        table: String,
     },
     /// Print a JSON Schema of the plan file, for editors that complete TOML keys.
     Schema,

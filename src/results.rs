@@ -202,6 +202,10 @@ pub struct DataAccount {
     pub rows_dropped: BTreeMap<String, u64>,
     /// Groups left out of the analysis, with why.
     pub groups_excluded: Vec<ExcludedGroup>,
+    /// "moments" when the data were per-group moments (`data.moments`) rather than
+    /// rows; absent for rows.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<String>,
 }
 
 /// A group left out of the analysis.
@@ -524,6 +528,10 @@ pub struct Checks {
     pub influence: Influence,
     /// The covariate across groups.
     pub covariate_balance: CovariateBalance,
+    /// The checks that could not run because the data were per-group moments
+    /// without rows ("normality", "equal_variance", "influence"); absent otherwise.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub not_run: Vec<String>,
 }
 
 /// Shapiro–Wilk on residuals.

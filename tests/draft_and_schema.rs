@@ -839,6 +839,8 @@ fn every_schema_key_is_described_closed_and_accepted_by_the_loader() {
     let mut base = minimal(&schema);
     // A response is required unless [[responses]] lists the attributes.
     base["model"]["response"] = json!("dry_mass_g");
+    // The data are `path` or `moments`, one of the two.
+    base["data"]["path"] = json!("../demo-data/nursery-2026.csv");
     let base_text = toml::to_string(&base).unwrap();
     let base_plan = without_spans(load(&base_text).unwrap());
     let paths = all_property_paths();
@@ -900,6 +902,10 @@ fn every_schema_key_is_described_closed_and_accepted_by_the_loader() {
             // A sheet's keys need a spreadsheet's path.
             if name == "data.sheet" || name == "data.header_row" {
                 doc["data"]["path"] = json!("data.xlsx");
+            }
+            // Moments take the place of the rows' path.
+            if name == "data.moments" {
+                doc["data"].as_object_mut().unwrap().remove("path");
             }
             // [[responses]] takes the place of model.response.
             if path[0] == "responses" {
@@ -1092,6 +1098,9 @@ fn every_serde_key_and_value_is_in_the_schema() {
             // A response is required unless [[responses]] lists the attributes.
             if steps[0] != "responses" {
                 doc["model"]["response"] = json!("dry_mass_g");
+            }
+            if doc["data"].get("path").is_none() {
+                doc["data"]["path"] = json!("../demo-data/nursery-2026.csv");
             }
             let text = toml::to_string(&doc).unwrap();
             load(&text).unwrap_or_else(|e| panic!("{dotted}.{key}: {e}\n{text}"));

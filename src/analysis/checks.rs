@@ -36,6 +36,51 @@ const SUBSAMPLE_SEED: u64 = 0x5105_e5a1_d0c5_2026;
 /// Quantile-plot points kept in `results.json`.
 const QQ_POINTS: usize = 400;
 
+/// The checks that look at residuals, which a moments file cannot give.
+pub const NEED_ROWS: [&str; 3] = ["normality", "equal_variance", "influence"];
+
+/// The residual checks of a moments file, which holds no rows: each with no
+/// statistic (`Checks::not_run` names them), and the influence summary as the
+/// selected model gives it over no rows (its cut-offs, nothing flagged).
+pub(super) fn without_rows(
+    groups: &[&GroupData],
+    influence: (crate::results::Influence, super::influence::Flagged),
+) -> (
+    (Normality, EqualVariance, Vec<String>),
+    (crate::results::Influence, super::influence::Flagged),
+) {
+    let k = groups.len() as f64;
+    let n: f64 = groups.iter().map(|g| g.moments.n as f64).sum();
+    let normality = Normality {
+        method: "shapiro-wilk".into(),
+        statistic: None,
+        p_value: None,
+        n: 0,
+        residuals: 0,
+        subsampled: false,
+        groups: groups
+            .iter()
+            .map(|g| GroupNormality {
+                level: g.level.clone(),
+                statistic: None,
+                p_value: None,
+                n: 0,
+                subsampled: false,
+                not_tested: Some("no-rows".into()),
+            })
+            .collect(),
+        qq: Vec::new(),
+    };
+    let equal_variance = EqualVariance {
+        method: "brown-forsythe".into(),
+        statistic: None,
+        df1: k - 1.0,
+        df2: n - k,
+        p_value: None,
+    };
+    ((normality, equal_variance, Vec::new()), influence)
+}
+
 /// The separate-lines residual of each row of group `gi`, in data order.
 fn residuals<'a>(g: &'a GroupData, line_slope: f64) -> impl Iterator<Item = f64> + 'a {
     let m = g.moments;

@@ -48,6 +48,16 @@ pub(super) fn checks(plan: &Plan, r: &Results, homogeneous: bool) -> Vec<Found> 
     let covariate = plan.model.covariate_transform.label(&plan.model.covariate);
     let c = &r.checks;
     let mut out = Vec::new();
+    if !c.not_run.is_empty() {
+        out.push(found(
+            "not-checked",
+            None,
+            None,
+            "the data were per-group moments, so the residuals could not be checked".to_string(),
+            "normality, equal spread and the rows that drive the fit are assumed, not checked; run the plan on the rows to check them",
+            "The data were per-group moments (data.moments) without rows: the residuals' normality and equal spread and the rows that drive the fit were not checked. Every test and interval assumes them.".to_string(),
+        ));
+    }
 
     if homogeneous {
         let smallest = r.groups.iter().min_by_key(|g| g.n);

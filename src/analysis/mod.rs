@@ -75,7 +75,7 @@ pub fn row_influence(
     let mut warnings = Vec::new();
     let eligible = eligible::select(data, &mut warnings)?;
     check_magnitudes(plan, &eligible.groups)?;
-    let fits = Fits::new(&eligible.groups);
+    let fits = Fits::new(&eligible.groups, data.from_moments);
     let gate = gate::equal_slopes(
         &fits.separate,
         &fits.common,
@@ -142,7 +142,10 @@ struct Fits {
 }
 
 impl Fits {
-    fn new(groups: &[&GroupData]) -> Fits {
+    fn new(groups: &[&GroupData], from_moments: bool) -> Fits {
+        if from_moments {
+            return Fits::from_moments(groups);
+        }
         let moments: Vec<_> = groups.iter().map(|g| g.moments).collect();
         let mut lines: Vec<GroupLine> = moments
             .iter()
@@ -192,6 +195,45 @@ impl Fits {
         let rss_one = corrected(single_sq, single_sum, all.n as f64);
         common.rss = rss_common;
         one.line.rss = rss_one;
+        Fits {
+            separate: SeparateFit::new(lines),
+            common,
+            one,
+            floor,
+        }
+    }
+
+    /// The fits of a moments file, which holds no rows: each residual sum of squares
+    /// is the closed form Syy − Sxy²/Sxx (per group; pooled within groups for the
+    /// common slope; over the pooled moments for one line). With no rows to take the
+    /// largest |y| from, the rounding floor takes |ȳ| + √Syy, which bounds it.
+    fn from_moments(groups: &[&GroupData]) -> Fits {
+        let moments: Vec<_> = groups.iter().map(|g| g.moments).collect();
+        let about = |syy: f64, sxy: f64, sxx: f64| (syy - sxy * sxy / sxx).max(0.0);
+        let mut lines: Vec<GroupLine> = moments
+            .iter()
+            .map(|m| GroupLine::fit(m).expect("eligible groups have covariate spread"))
+            .collect();
+        let mut common =
+            CommonSlopeFit::fit(&moments).expect("eligible groups have covariate spread");
+        let mut one = OneLineFit::fit(&moments).expect("eligible groups have covariate spread");
+        let (mut syy, mut sxy, mut sxx, mut floor) = (0.0, 0.0, 0.0, 0.0);
+        for (m, line) in moments.iter().zip(&mut lines) {
+            line.rss = about(m.syy, m.sxy, m.sxx);
+            syy += m.syy;
+            sxy += m.sxy;
+            sxx += m.sxx;
+            let b = line
+                .slope
+                .abs()
+                .max(common.slope.abs())
+                .max(one.line.slope.abs());
+            let max_y = m.mean_y.abs() + m.syy.sqrt();
+            floor += rounding_floor(m.n, max_y + b * m.min_x.abs().max(m.max_x.abs()));
+        }
+        common.rss = about(syy, sxy, sxx);
+        let all = one.line.moments;
+        one.line.rss = about(all.syy, all.sxy, all.sxx);
         Fits {
             separate: SeparateFit::new(lines),
             common,
@@ -303,7 +345,7 @@ fn procedure(
     if let Some(w) = offset_precision_warning(&plan.model.covariate, &moments) {
         warnings.push(w);
     }
-    let fits = Fits::new(&eligible.groups);
+    let fits = Fits::new(&eligible.groups, data.from_moments);
     let (separate, common, one) = (&fits.separate, &fits.common, &fits.one);
     let levels: Vec<&str> = eligible.groups.iter().map(|g| g.level.as_str()).collect();
     let alpha = plan.tests.alpha;
@@ -456,7 +498,13 @@ fn procedure(
     // The residual checks and the influence measures each take a few passes over
     // every row and share nothing, so they run on two cores. Warnings keep the
     // order a single thread would give them.
-    let ((normality, equal_variance, check_warnings), (influence, flagged)) =
+    let ((normality, equal_variance, check_warnings), (influence, flagged)) = if data.from_moments {
+        checks::without_rows(
+            &eligible.groups,
+            fits.selected(&eligible.groups, homogeneous)
+                .summarize(alpha),
+        )
+    } else {
         std::thread::scope(|scope| {
             let residual_checks = scope.spawn(|| {
                 let mut w = Vec::new();
@@ -471,13 +519,19 @@ fn procedure(
                 .join()
                 .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
             (residual_checks, influence)
-        });
+        })
+    };
     warnings.extend(check_warnings);
     let checks = Checks {
         normality,
         equal_variance,
         covariate_balance: checks::covariate_balance(&moments, &mut warnings),
         influence,
+        not_run: if data.from_moments {
+            checks::NEED_ROWS.iter().map(|c| c.to_string()).collect()
+        } else {
+            Vec::new()
+        },
     };
 
     let pair_indices = pairwise::pair_indices(levels.len(), plan.tests.comparisons);
@@ -500,6 +554,14 @@ fn procedure(
                     }
                 }
                 values.clone()
+            }
+            None if data.from_moments => {
+                // The quartiles need the rows; the mean is what the moments give.
+                warnings.push(format!(
+                    "The differences between the lines are given at the covariate's mean ({}) only: the quartiles need the rows, and a moments file has none. List the values under tests.compare_at.",
+                    crate::number::trimmed(all.mean_x, 6)
+                ));
+                vec![all.mean_x]
             }
             None => {
                 let x = || {
@@ -581,6 +643,7 @@ fn procedure(
             comparisons: plan.tests.comparisons.name().into(),
             compare_at_rule: match plan.tests.compare_at {
                 Some(_) => "values".into(),
+                None if data.from_moments => "mean".into(),
                 None => "quartiles".into(),
             },
             response_units: plan.model.response_units.clone(),
@@ -596,6 +659,7 @@ fn procedure(
             rows_used: one.line.moments.n,
             rows_dropped: eligible.dropped,
             groups_excluded: eligible.excluded,
+            source: data.from_moments.then(|| "moments".to_string()),
         },
         covariate_mean,
         adjust_at,
@@ -651,6 +715,10 @@ fn check_magnitudes(plan: &Plan, groups: &[&GroupData]) -> Result<(), AnalysisEr
     let (mut lo_y, mut hi_y) = (f64::INFINITY, f64::NEG_INFINITY);
     for g in groups {
         max_x = max_x.max(g.moments.min_x.abs()).max(g.moments.max_x.abs());
+        if g.y.is_empty() {
+            // Moments without rows: no value lies further than √Syy from the mean.
+            max_y = max_y.max(g.moments.mean_y.abs() + g.moments.syy.sqrt());
+        }
         for y in g.y.iter() {
             max_y = max_y.max(y.abs());
             lo_y = lo_y.min(y);

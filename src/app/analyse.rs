@@ -82,7 +82,7 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
         source_kind(data_path)
     };
     let (dataset, data_sha256) = match source {
-        Source::Regular if plan.data.format == DataFormat::Csv => {
+        Source::Regular if plan.data.format == DataFormat::Csv && !plan.data.moments => {
             sniff(open()?, &data_file)?;
             if plan.data.sha256.is_some() {
                 check_pin(&hash_file(open()?, &data_file)?)?;
@@ -108,6 +108,7 @@ pub(super) fn analyse(lp: &LoadedPlan, data_path: &Path) -> Result<Analysed, Dia
             let hash = crate::digest::sha256_hex(&bytes);
             check_pin(&hash)?;
             let dataset = match plan.data.format {
+                _ if plan.data.moments => data::load_moments(plan, &bytes),
                 DataFormat::Csv => data::load(plan, &bytes),
                 DataFormat::Xlsx | DataFormat::Ods => data::load_sheet(plan, &bytes),
                 DataFormat::Parquet => data::load_parquet(plan, &bytes),

@@ -13,6 +13,7 @@ mod keygen;
 mod plan_file;
 mod run;
 mod selftest;
+mod sql;
 mod typst;
 mod verify;
 
@@ -70,6 +71,11 @@ pub fn main() -> ExitCode {
             allow_mismatch,
         ),
         Command::Init { data, out } => init::init(&data, out.as_deref()),
+        Command::Sql {
+            plan,
+            dialect,
+            table,
+        } => sql::sql(&plan, dialect, &table),
         Command::Schema => {
             say(&crate::schema::plan_schema());
             Ok(())

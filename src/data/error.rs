@@ -267,6 +267,24 @@ pub enum DataError {
         /// The first merged region.
         range: String,
     },
+    /// A moments file without the columns slopewise reads, or with others.
+    #[error("the moments file {}", moments_header(missing, unknown))]
+    MomentsHeader {
+        /// Columns it lacks.
+        missing: Vec<String>,
+        /// Columns it has that are not moments.
+        unknown: Vec<String>,
+    },
+    /// A value in a moments file that moments of real data cannot take.
+    #[error("{at} holds `{text}`: {why}")]
+    MomentsValue {
+        /// Where.
+        at: CellAt,
+        /// The cell text.
+        text: String,
+        /// What is impossible about it.
+        why: String,
+    },
     /// More rows than row numbers can hold.
     #[error("the data file has more than {max} rows, which slopewise does not support")]
     TooManyRows {
@@ -301,6 +319,25 @@ impl std::fmt::Display for DomainColumn {
             if self.count == 1 { "has" } else { "have" },
             list_rows(&self.rows)
         )
+    }
+}
+
+fn moments_header(missing: &[String], unknown: &[String]) -> String {
+    let list = |names: &[String]| {
+        names
+            .iter()
+            .map(|n| format!("`{n}`"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    match (missing.is_empty(), unknown.is_empty()) {
+        (false, true) => format!("lacks the column(s) {}", list(missing)),
+        (true, false) => format!("has column(s) that are not moments: {}", list(unknown)),
+        _ => format!(
+            "lacks the column(s) {} and has others: {}",
+            list(missing),
+            list(unknown)
+        ),
     }
 }
 
@@ -508,6 +545,13 @@ impl DataError {
             ),
             DataError::ParquetType { .. } => d.help(
                 "the response and the covariate must be stored as integers, floats or decimals; write the column with a numeric type, or name another column in the plan",
+            ),
+            DataError::MomentsHeader { .. } => d.help(format!(
+                "a moments file has the columns {}, as the query of `slopewise sql PLAN` names them",
+                super::MOMENT_COLUMNS.join(", ")
+            )),
+            DataError::MomentsValue { .. } => d.help(
+                "the moments file is the result of the query `slopewise sql PLAN` prints; check that it ran on the plan's columns, or fix the value",
             ),
             DataError::MergedCells { .. } => {
                 d.help("unmerge the cells and fill in every row's value, or export the sheet as CSV")

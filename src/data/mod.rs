@@ -12,13 +12,16 @@
 mod column;
 mod error;
 mod lines;
+mod moments;
 mod parquet;
 mod rows;
 mod sheet;
 mod split;
+pub mod sql;
 
 pub use column::Column;
 pub use error::{CellAt, DataError, DomainColumn, PlanKey};
+pub use moments::{COLUMNS as MOMENT_COLUMNS, load_moments};
 pub use parquet::load_parquet;
 pub use rows::RowNumbers;
 pub use sheet::load_sheet;
@@ -134,6 +137,9 @@ pub struct Dataset {
     pub dropped: BTreeMap<DropReason, u64>,
     /// Groups in level order: `model.levels` when given, else labels sorted as text.
     pub groups: Vec<GroupData>,
+    /// True when the groups hold moments only (`data.moments`): their columns are
+    /// empty, and the checks that need rows cannot run.
+    pub from_moments: bool,
 }
 
 impl Dataset {
@@ -159,6 +165,7 @@ impl Dataset {
             rows_read: self.rows_read,
             dropped: self.dropped.clone(),
             groups,
+            from_moments: self.from_moments,
         }
     }
 }
@@ -467,6 +474,7 @@ impl<'a> Sorter<'a> {
             rows_read,
             dropped,
             groups,
+            from_moments: false,
         })
     }
 }

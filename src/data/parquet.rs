@@ -17,19 +17,8 @@ use crate::plan::{DataFormat, Plan};
 
 /// Reads the Parquet file in `bytes`.
 pub fn load_parquet(plan: &Plan, bytes: &[u8]) -> Result<Dataset, DataError> {
-    let reader = SerializedFileReader::new(bytes::Bytes::copy_from_slice(bytes))
-        .map_err(|e| DataError::Parquet(format!("it cannot be read as Parquet: {e}")))?;
+    let reader = open(bytes)?;
     let schema = reader.metadata().file_metadata().schema_descr_ptr();
-    let mut names = Vec::new();
-    for column in schema.columns() {
-        if column.path().parts().len() > 1 {
-            return Err(DataError::Parquet(format!(
-                "its column `{}` is nested; slopewise reads flat tables",
-                column.path().string()
-            )));
-        }
-        names.push(column.name().to_string());
-    }
     for (wanted, key) in [
         (&plan.model.response, PlanKey::Response),
         (&plan.model.covariate, PlanKey::Covariate),
@@ -51,6 +40,43 @@ pub fn load_parquet(plan: &Plan, bytes: &[u8]) -> Result<Dataset, DataError> {
             });
         }
     }
+    let text = text(&reader)?;
+    let mut csv_plan = plan.clone();
+    csv_plan.data.delimiter = b',';
+    csv_plan.data.format = DataFormat::Csv;
+    super::load(&csv_plan, text.as_bytes())
+}
+
+/// The file's reader, once its table is known to be flat.
+fn open(bytes: &[u8]) -> Result<SerializedFileReader<bytes::Bytes>, DataError> {
+    let reader = SerializedFileReader::new(bytes::Bytes::copy_from_slice(bytes))
+        .map_err(|e| DataError::Parquet(format!("it cannot be read as Parquet: {e}")))?;
+    for column in reader.metadata().file_metadata().schema_descr().columns() {
+        if column.path().parts().len() > 1 {
+            return Err(DataError::Parquet(format!(
+                "its column `{}` is nested; slopewise reads flat tables",
+                column.path().string()
+            )));
+        }
+    }
+    Ok(reader)
+}
+
+/// The whole table in `bytes` as CSV text (a header, then one line per row).
+pub(super) fn table_text(bytes: &[u8]) -> Result<String, DataError> {
+    text(&open(bytes)?)
+}
+
+/// The rows of `reader` as CSV text, its columns' names as the header.
+fn text(reader: &SerializedFileReader<bytes::Bytes>) -> Result<String, DataError> {
+    let names: Vec<String> = reader
+        .metadata()
+        .file_metadata()
+        .schema_descr()
+        .columns()
+        .iter()
+        .map(|c| c.name().to_string())
+        .collect();
     let mut text = String::new();
     text.push_str(
         &names
@@ -69,10 +95,7 @@ pub fn load_parquet(plan: &Plan, bytes: &[u8]) -> Result<Dataset, DataError> {
         text.push_str(&fields.join(","));
         text.push('\n');
     }
-    let mut csv_plan = plan.clone();
-    csv_plan.data.delimiter = b',';
-    csv_plan.data.format = DataFormat::Csv;
-    super::load(&csv_plan, text.as_bytes())
+    Ok(text)
 }
 
 /// Why a column's type holds no numbers, or None when it does (integers, floats and

@@ -98,6 +98,8 @@ pub struct DataSpec {
     pub sheet: Option<String>,
     /// For a spreadsheet: the 1-based row holding the column names.
     pub header_row: u32,
+    /// True when `path` names a file of per-group moments (`data.moments`), not rows.
+    pub moments: bool,
 }
 
 /// One `[[data.keep]]` filter.
@@ -306,7 +308,7 @@ fn from_raw(file: &str, source: &str, raw: &schema::RawPlan) -> Result<Plan, Pla
     let title = nonempty(&raw.title, "title", &err)?;
 
     let data = raw.data.get_ref();
-    let path = nonempty(&data.path, "data.path", &err)?;
+    let (path, path_span, moments) = source::file(data, raw.data.span(), &err)?;
     let missing = match &data.missing {
         Some(list) => list.get_ref().clone(),
         None => DEFAULT_MISSING.iter().map(|s| s.to_string()).collect(),
@@ -778,8 +780,14 @@ fn from_raw(file: &str, source: &str, raw: &schema::RawPlan) -> Result<Plan, Pla
     };
 
     let checks = CheckSpec {
-        sensitivity: raw.checks.as_ref().and_then(|c| c.sensitivity),
+        sensitivity: raw
+            .checks
+            .as_ref()
+            .and_then(|c| c.sensitivity.as_ref().map(|s| *s.get_ref())),
     };
+    if moments {
+        source::without_rows(raw, &err)?;
+    }
 
     Ok(Plan {
         attributes: Vec::new(),
@@ -795,6 +803,7 @@ fn from_raw(file: &str, source: &str, raw: &schema::RawPlan) -> Result<Plan, Pla
             format,
             sheet,
             header_row,
+            moments,
         },
         model: ModelSpec {
             response,
@@ -811,7 +820,7 @@ fn from_raw(file: &str, source: &str, raw: &schema::RawPlan) -> Result<Plan, Pla
         tests,
         report,
         spans: PlanSpans {
-            data_path: data.path.span(),
+            data_path: path_span,
             data_sha256: data.sha256.as_ref().map(Spanned::span),
             response: response_span,
             covariate: model.covariate.span(),

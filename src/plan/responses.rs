@@ -16,6 +16,13 @@ pub(super) fn several(file: &str, source: &str, raw: schema::RawPlan) -> Result<
     let err = |span: Range<usize>, message: String, help: &str| {
         PlanError::new(file, source, span, message, help)
     };
+    if let Some(m) = &raw.data.get_ref().moments {
+        return Err(err(
+            m.span(),
+            "data.moments holds one response's moments, but the plan lists several under [[responses]]".into(),
+            "write one plan per attribute, each with its own moments file, or read the rows with data.path",
+        ));
+    }
     let model = raw.model.get_ref();
     if let Some(r) = &model.response {
         return Err(err(

@@ -117,7 +117,7 @@ pub(super) struct RawResponseLimits {
 
 #[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
-#[schemars(extend("allOf" = [
+#[schemars(extend("oneOf" = [{"required": ["path"]}, {"required": ["moments"]}], "allOf" = [
     {
         "if": {"properties": {"path": {"pattern": "\\.([xX][lL][sS][xX]|[oO][dD][sS]|[pP][aA][rR][qQ][uU][eE][tT])$"}}},
         "then": {"not": {"required": ["delimiter"]}}
@@ -128,12 +128,19 @@ pub(super) struct RawResponseLimits {
     }
 ]))]
 pub(super) struct RawData {
-    /// The data file, relative to the plan's folder ("-": standard input). Required.
-    /// A CSV file with a header row; a path ending in .xlsx or .ods is read as a
-    /// spreadsheet (see `sheet`, `header_row`), one ending in .parquet as a Parquet
-    /// table.
-    #[schemars(with = "String", extend("pattern" = "\\S", "examples" = ["../demo-data/nursery-2026.csv"]))]
-    pub path: Spanned<String>,
+    /// The data file, relative to the plan's folder ("-": standard input). Required
+    /// unless `moments` is given instead. A CSV file with a header row; a path ending
+    /// in .xlsx or .ods is read as a spreadsheet (see `sheet`, `header_row`), one
+    /// ending in .parquet as a Parquet table.
+    #[schemars(with = "Option<String>", extend("pattern" = "\\S", "examples" = ["../demo-data/nursery-2026.csv"]))]
+    pub path: Option<Spanned<String>>,
+    /// Instead of `path`: a file of per-group moments an engine computed (the query
+    /// `slopewise sql` prints), relative to the plan's folder; CSV, or Parquet when
+    /// it ends in .parquet. Columns group, n, mean_x, mean_y, sxx, syy, sxy, min_x,
+    /// max_x, of the transformed values. The fits, the gate and the comparisons
+    /// come from them; the checks that need the rows are said not to have run.
+    #[schemars(with = "Option<String>", extend("pattern" = "\\S", "examples" = ["nursery-moments.csv"]))]
+    pub moments: Option<Spanned<String>>,
     /// Cell texts read as missing, compared after trimming spaces. Rows with a missing
     /// response, covariate or group are dropped and counted by reason.
     #[schemars(with = "Option<Vec<String>>", extend("default" = ["", "NA"], "examples" = [["", "NA", "-"]]))]
@@ -468,8 +475,8 @@ pub(super) struct RawChecks {
     /// F(p, n − p), or a studentized residual beyond the Bonferroni t quantile),
     /// shown beside the full results. Left out, it runs whenever a row matters;
     /// true runs it always, false never.
-    #[schemars(extend("examples" = [false]))]
-    pub sensitivity: Option<bool>,
+    #[schemars(with = "Option<bool>", extend("examples" = [false]))]
+    pub sensitivity: Option<Spanned<bool>>,
 }
 
 #[derive(Debug, Clone, Deserialize, JsonSchema)]

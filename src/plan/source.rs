@@ -108,3 +108,84 @@ pub(super) fn kind_and_keys(
     };
     Ok((format, sheet, header_row))
 }
+
+/// The file `[data]` names: `path` (rows) or `moments` (per-group moments), exactly
+/// one, with its span and whether it holds moments.
+pub(super) fn file(
+    data: &schema::RawData,
+    table: Range<usize>,
+    err: &impl Fn(Range<usize>, String, &str) -> PlanError,
+) -> Result<(String, Range<usize>, bool), PlanError> {
+    match (&data.path, &data.moments) {
+        (Some(path), None) => Ok((super::nonempty(path, "data.path", err)?, path.span(), false)),
+        (None, Some(m)) => {
+            let path = super::nonempty(m, "data.moments", err)?;
+            let format = DataFormat::of(&path);
+            if format.is_sheet() || path.trim() == "-" {
+                return Err(err(
+                    m.span(),
+                    format!(
+                        "data.moments must name a CSV or Parquet file, found {}",
+                        if format.is_sheet() {
+                            "a spreadsheet"
+                        } else {
+                            "standard input"
+                        }
+                    ),
+                    "save the engine's result as CSV (or .parquet) and name that file",
+                ));
+            }
+            if let Some(missing) = &data.missing {
+                return Err(err(
+                    missing.span(),
+                    "data.missing applies to rows, but data.moments names a file of moments".into(),
+                    "remove data.missing: the engine's query leaves out rows with a null response or covariate",
+                ));
+            }
+            Ok((path, m.span(), true))
+        }
+        (Some(path), Some(m)) => Err(err(
+            path.span().start..m.span().end.max(path.span().end),
+            "[data] gives both `path` and `moments`".into(),
+            "keep `path` to read the rows, or `moments` to read an engine's per-group moments",
+        )),
+        (None, None) => Err(err(
+            table,
+            "[data] names no data: neither `path` nor `moments`".into(),
+            "add `path = \"file.csv\"` (the rows), or `moments = \"file.csv\"` (per-group moments from `slopewise sql`)",
+        )),
+    }
+}
+
+/// Options that need the rows, refused with a moments file: the robust covariance
+/// takes every residual, the sensitivity rerun drops rows.
+pub(super) fn without_rows(
+    raw: &schema::RawPlan,
+    err: &impl Fn(Range<usize>, String, &str) -> PlanError,
+) -> Result<(), PlanError> {
+    if let Some(c) = raw
+        .tests
+        .as_ref()
+        .and_then(|t| t.get_ref().covariance.as_ref())
+        && *c.get_ref() != schema::Covariance::Classical
+    {
+        return Err(err(
+            c.span(),
+            format!(
+                "tests.covariance = \"{}\" needs every residual, but data.moments gives only per-group moments",
+                c.get_ref().name()
+            ),
+            "remove tests.covariance (classical), or read the rows with data.path",
+        ));
+    }
+    if let Some(s) = raw.checks.as_ref().and_then(|c| c.sensitivity.as_ref())
+        && *s.get_ref()
+    {
+        return Err(err(
+            s.span(),
+            "checks.sensitivity = true reruns the analysis without rows, but data.moments gives no rows".into(),
+            "remove checks.sensitivity, or read the rows with data.path",
+        ));
+    }
+    Ok(())
+}

@@ -83,14 +83,22 @@ pub struct Figure {
 /// Draws every figure the results call for, in the order the report shows them.
 ///
 /// `figures/lines.svg`, `figures/residuals.svg` and `figures/normal-quantiles.svg`
-/// always; `figures/difference.svg` when the gate found the slopes unequal and
+/// always, the last two only from rows (a moments file has no residuals to draw);
+/// `figures/difference.svg` when the gate found the slopes unequal and
 /// regions were computed.
 pub fn render(r: &Results, p: &FigurePoints) -> Result<Vec<Figure>, String> {
     ensure_font()?;
     let ctx = Context::new(r, p);
     // The figures share nothing but the context: two are drawn on a second core.
+    let from_rows = r.checks.not_run.is_empty();
     let (first, second) = std::thread::scope(|scope| {
-        let second = scope.spawn(|| Ok::<_, String>([residuals(&ctx)?, normal_quantiles(&ctx)?]));
+        let second = scope.spawn(|| {
+            Ok::<_, String>(if from_rows {
+                vec![residuals(&ctx)?, normal_quantiles(&ctx)?]
+            } else {
+                Vec::new()
+            })
+        });
         let mut first = vec![lines(&ctx)];
         if !r.decision.homogeneous && !r.regions.is_empty() {
             first.push(difference(&ctx));
@@ -192,7 +200,12 @@ impl<'a> Context<'a> {
         let drawn: usize = self.points.iter().map(Vec::len).sum();
         let rows: u64 = self.rows.iter().sum();
         let most = self.points.iter().map(Vec::len).max().unwrap_or(0);
-        if drawn as u64 == rows {
+        if self.r.data.source.as_deref() == Some("moments") {
+            format!(
+                "No points are drawn: the data were per-group moments of {} rows; the lines and bands come from them.",
+                thousands(rows)
+            )
+        } else if drawn as u64 == rows {
             format!("All {} rows are drawn.", thousands(rows))
         } else {
             format!(

@@ -10,6 +10,17 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
     let r = c.r;
     let ch = &r.checks;
     b.section(vec![t("Checking the assumptions")]);
+    if !ch.not_run.is_empty() {
+        // A moments file: the residuals were never seen.
+        b.para(lead(
+            "Not checked.",
+            vec![t(
+                "The data were per-group moments (data.moments), without rows, so the residuals' normality and equal spread, and the rows that drive the fit, could not be checked. The tests and intervals assume all three; run the plan on the rows (data.path) to check them before relying on the results.",
+            )],
+        ));
+        covariate_balance(b, c);
+        return;
+    }
     let n = &ch.normality;
     b.para(lead(
         "Normal residuals.",
@@ -62,7 +73,13 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
             peq(ev.p_value)
         ))],
     ));
-    let cb = &ch.covariate_balance;
+    covariate_balance(b, c);
+    influence(b, c);
+}
+
+/// The covariate's spread across groups, from the moments alone.
+fn covariate_balance(b: &mut Builder, c: &Ctx) {
+    let cb = &c.r.checks.covariate_balance;
     let mut balance = vec![
         v(&c.x),
         t(format!(
@@ -82,7 +99,12 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
         None => balance.extend([t("No range of "), v(&c.x), t(" is covered by every group.")]),
     }
     b.para(lead("Covariate balance.", balance));
-    let inf = &ch.influence;
+}
+
+/// The rows that drive the fit, and the rerun without them.
+fn influence(b: &mut Builder, c: &Ctx) {
+    let r = c.r;
+    let inf = &r.checks.influence;
     b.para(lead(
         "Influential rows.",
         vec![t(format!(

@@ -12,13 +12,20 @@ fn cite(w: Work) -> Inline {
 pub(super) fn section(b: &mut Builder, c: &Ctx) {
     let r = c.r;
     b.section(vec![t("How this was computed")]);
-    let mut m: Runs = vec![
-        t(
-            "Each group's line was fitted by ordinary least squares, from centred sums of squares and products computed in two passes over each group's rows, means first, then the centred sums (the corrected two-pass algorithm; ",
-        ),
-        cite(Work::ChanGolubLeVeque1983),
-        t(")."),
-    ];
+    let from_moments = r.data.source.as_deref() == Some("moments");
+    let mut m: Runs = if from_moments {
+        vec![t(
+            "Each group's line was fitted by ordinary least squares from the group's count, means and centred sums of squares and products, as the data engine computed them and the moments file (data.moments) holds them; each residual sum of squares is Syy − Sxy²/Sxx.",
+        )]
+    } else {
+        vec![
+            t(
+                "Each group's line was fitted by ordinary least squares, from centred sums of squares and products computed in two passes over each group's rows, means first, then the centred sums (the corrected two-pass algorithm; ",
+            ),
+            cite(Work::ChanGolubLeVeque1983),
+            t(")."),
+        ]
+    };
     if r.model.response_transform != "none" || r.model.covariate_transform != "none" {
         m.extend([
             t(" The fits use "),
@@ -107,29 +114,13 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
     }
     b.para(m);
 
-    let mut checks: Runs = vec![
-        t(
-            "Residuals of the separate lines were checked for normality with the Shapiro–Wilk test (",
-        ),
-        cite(Work::ShapiroWilk1965),
-        t(") in Royston's approximation ("),
-        cite(Work::Royston1995),
-        t(
-            "), pooled and within each group of at least 10 rows (with fewer, W is set by the design rather than the data), and for equal spread across groups with the Brown–Forsythe test (",
-        ),
-        cite(Work::BrownForsythe1974),
-        t(
-            "). Influential rows were measured on the selected model by leverage, externally studentized residuals and Cook's distance (",
-        ),
-        cite(Work::Cook1977),
-        t("; "),
-        cite(Work::BelsleyKuhWelsch1980),
-        t("), with the cut-offs 2p/n for leverage ("),
-        cite(Work::HoaglinWelsch1978),
-        t(") and 4/n for Cook's distance ("),
-        cite(Work::BollenJackman1990),
-        t("). The covariate was compared across groups with a one-way analysis of variance."),
-    ];
+    let mut checks: Runs = if from_moments {
+        vec![t(
+            "The residual checks (normality, equal spread, influential rows) need the rows and did not run. The covariate was compared across groups with a one-way analysis of variance.",
+        )]
+    } else {
+        residual_checks()
+    };
     if !r.decision.homogeneous {
         checks.extend([
             t(" Where slopes differ, the covariate values at which two groups' lines differ significantly were found by the Johnson–Neyman technique ("),
@@ -148,6 +139,8 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
                 cite(Work::HyndmanFan1996),
                 t(", definition 7)."),
             ]);
+        } else if r.model.compare_at_rule == "mean" {
+            checks.push(t("the covariate's mean (the quartiles need the rows)."));
         } else {
             checks.push(t("the covariate values the plan lists."));
         }
@@ -229,4 +222,31 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
 
     b.subsection(vec![t("References")]);
     b.push(Block::References(Vec::new()));
+}
+
+/// The residual checks, as they ran on the rows.
+fn residual_checks() -> Runs {
+    vec![
+        t(
+            "Residuals of the separate lines were checked for normality with the Shapiro–Wilk test (",
+        ),
+        cite(Work::ShapiroWilk1965),
+        t(") in Royston's approximation ("),
+        cite(Work::Royston1995),
+        t(
+            "), pooled and within each group of at least 10 rows (with fewer, W is set by the design rather than the data), and for equal spread across groups with the Brown–Forsythe test (",
+        ),
+        cite(Work::BrownForsythe1974),
+        t(
+            "). Influential rows were measured on the selected model by leverage, externally studentized residuals and Cook's distance (",
+        ),
+        cite(Work::Cook1977),
+        t("; "),
+        cite(Work::BelsleyKuhWelsch1980),
+        t("), with the cut-offs 2p/n for leverage ("),
+        cite(Work::HoaglinWelsch1978),
+        t(") and 4/n for Cook's distance ("),
+        cite(Work::BollenJackman1990),
+        t("). The covariate was compared across groups with a one-way analysis of variance."),
+    ]
 }

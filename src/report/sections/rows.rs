@@ -7,7 +7,11 @@ pub(super) fn section(b: &mut Builder, c: &Ctx) {
     let d = &c.r.data;
     b.section(vec![t("Rows in and out")]);
     let mut rows = vec![vec![
-        cell("read from the data file"),
+        cell(if d.source.as_deref() == Some("moments") {
+            "counted in the moments file (after the engine's filters)"
+        } else {
+            "read from the data file"
+        }),
         cell(d.rows_read.to_string()),
     ]];
     for (key, count) in &d.rows_dropped {
