@@ -9,6 +9,7 @@
 pub mod lines;
 pub mod moments;
 pub mod qr;
+pub mod twofold;
 
 pub use lines::{CommonSlopeFit, GroupLine, OneLineFit, SeparateFit};
 pub use moments::Moments;
