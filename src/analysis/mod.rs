@@ -143,9 +143,6 @@ struct Fits {
 
 impl Fits {
     fn new(groups: &[&GroupData], from_moments: bool) -> Fits {
-        if from_moments {
-            return Fits::from_moments(groups);
-        }
         let moments: Vec<_> = groups.iter().map(|g| g.moments).collect();
         let mut lines: Vec<GroupLine> = moments
             .iter()
@@ -154,6 +151,30 @@ impl Fits {
         let mut common =
             CommonSlopeFit::fit(&moments).expect("eligible groups have covariate spread");
         let mut one = OneLineFit::fit(&moments).expect("eligible groups have covariate spread");
+        if from_moments {
+            // No rows: the fits keep their closed-form residual sums, Syy − b·Sxy.
+            // With no rows to take the largest |y| from, the rounding floor takes
+            // |ȳ| + √Syy, which bounds it.
+            let floor = moments
+                .iter()
+                .zip(&lines)
+                .map(|(m, line)| {
+                    let b = line
+                        .slope
+                        .abs()
+                        .max(common.slope.abs())
+                        .max(one.line.slope.abs());
+                    let max_y = m.mean_y.abs() + m.syy.sqrt();
+                    rounding_floor(m.n, max_y + b * m.min_x.abs().max(m.max_x.abs()))
+                })
+                .sum();
+            return Fits {
+                separate: SeparateFit::new(lines),
+                common,
+                one,
+                floor,
+            };
+        }
         let all = one.line.moments;
         // One pass over the rows gives every model's residual sum of squares
         // (see `rss_about` for why they are not taken from the moments).
@@ -195,45 +216,6 @@ impl Fits {
         let rss_one = corrected(single_sq, single_sum, all.n as f64);
         common.rss = rss_common;
         one.line.rss = rss_one;
-        Fits {
-            separate: SeparateFit::new(lines),
-            common,
-            one,
-            floor,
-        }
-    }
-
-    /// The fits of a moments file, which holds no rows: each residual sum of squares
-    /// is the closed form Syy − Sxy²/Sxx (per group; pooled within groups for the
-    /// common slope; over the pooled moments for one line). With no rows to take the
-    /// largest |y| from, the rounding floor takes |ȳ| + √Syy, which bounds it.
-    fn from_moments(groups: &[&GroupData]) -> Fits {
-        let moments: Vec<_> = groups.iter().map(|g| g.moments).collect();
-        let about = |syy: f64, sxy: f64, sxx: f64| (syy - sxy * sxy / sxx).max(0.0);
-        let mut lines: Vec<GroupLine> = moments
-            .iter()
-            .map(|m| GroupLine::fit(m).expect("eligible groups have covariate spread"))
-            .collect();
-        let mut common =
-            CommonSlopeFit::fit(&moments).expect("eligible groups have covariate spread");
-        let mut one = OneLineFit::fit(&moments).expect("eligible groups have covariate spread");
-        let (mut syy, mut sxy, mut sxx, mut floor) = (0.0, 0.0, 0.0, 0.0);
-        for (m, line) in moments.iter().zip(&mut lines) {
-            line.rss = about(m.syy, m.sxy, m.sxx);
-            syy += m.syy;
-            sxy += m.sxy;
-            sxx += m.sxx;
-            let b = line
-                .slope
-                .abs()
-                .max(common.slope.abs())
-                .max(one.line.slope.abs());
-            let max_y = m.mean_y.abs() + m.syy.sqrt();
-            floor += rounding_floor(m.n, max_y + b * m.min_x.abs().max(m.max_x.abs()));
-        }
-        common.rss = about(syy, sxy, sxx);
-        let all = one.line.moments;
-        one.line.rss = about(all.syy, all.sxy, all.sxx);
         Fits {
             separate: SeparateFit::new(lines),
             common,
